@@ -1,0 +1,34 @@
+#!/usr/bin/env bash
+# `npm test`: provision a separate MariaDB instance (port 3408) and maildev, build once,
+# run unit and end-to-end tests with Vitest, stop everything, exit non-zero on any failure.
+set -euo pipefail
+source "$(dirname "$0")/lib.sh"
+
+export CL_TEST_PORT="${CL_TEST_PORT:-3390}"
+export NUXT_SMTP_PORT="${NUXT_SMTP_PORT:-1027}"
+export CL_MAILDEV_WEB="${CL_MAILDEV_WEB:-1082}"
+export NUXT_PUBLIC_URL="http://127.0.0.1:$CL_TEST_PORT"
+export NUXT_SESSION_PASSWORD="test-session-password-0123456789abcdef"
+
+bash db/mariadb.sh ensure-installed
+ensure_node_modules
+
+MAILDEV_PID=""
+cleanup() {
+  trap - INT TERM EXIT
+  [[ -n "$MAILDEV_PID" ]] && kill "$MAILDEV_PID" 2>/dev/null || true
+  bash db/mariadb.sh stop test || true
+}
+trap cleanup INT TERM EXIT
+
+bash db/mariadb.sh start test
+export NUXT_DATABASE_URL="$(bash db/mariadb.sh url test)"
+npx tsx db/cli.ts reset
+
+rm -rf "$root/.data-test/maildev"
+start_maildev "$NUXT_SMTP_PORT" "$CL_MAILDEV_WEB" "$root/.data-test/maildev"
+
+say "building the app for the end-to-end tests"
+npx nuxt build > "$root/.data-test/build.log" 2>&1 || { tail -60 "$root/.data-test/build.log"; exit 1; }
+
+npx vitest run "$@"

@@ -1,0 +1,11 @@
+import { USER_MANAGERS } from '#shared/roles'
+import { UserCreateSchema } from '#shared/schemas/user'
+import { createUser } from '../../services/users'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireActor(event, USER_MANAGERS)
+  const input = await readValidBody(event, UserCreateSchema)
+  const user = await createUser(useDb(), actor, input, await hashPassword(input.password))
+  setResponseStatus(event, 201)
+  return user
+})

@@ -1,0 +1,75 @@
+import type { H3Event } from 'h3'
+import type { Knex } from 'knex'
+import type { OrganisationKind, Role } from '#shared/roles'
+
+export interface Actor {
+  id: number
+  name: string
+  email: string
+  role: Role
+  organisationId: number
+  organisationName: string
+  organisationKind: OrganisationKind
+  /** The supplier this actor works for or leases from. */
+  supplierId: number
+}
+
+/**
+ * The one guard every API route goes through: a live session of an active user whose
+ * session version still matches, holding one of `roles`. Organisation scoping is applied
+ * with `scopeQuery` / `assertVisible`, so records of another organisation answer 404.
+ */
+export async function requireActor(event: H3Event, roles: readonly Role[]): Promise<Actor> {
+  let actor = event.context.actor as Actor | undefined
+  if (!actor) {
+    const session = await getUserSession(event)
+    const sessionUser = session.user as { id?: number; sessionVersion?: number } | undefined
+    if (!sessionUser?.id) throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message: 'Sign in first' })
+    const row = await useDb()('users as u')
+      .join('organisations as o', 'o.id', 'u.organisation_id')
+      .where('u.id', sessionUser.id)
+      .first('u.id', 'u.name', 'u.email', 'u.role', 'u.active', 'u.session_version', 'o.id as org_id', 'o.name as org_name', 'o.kind as org_kind', 'o.supplier_id')
+    if (!row || !row.active || row.session_version !== sessionUser.sessionVersion) {
+      await clearUserSession(event)
+      throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message: 'Your session has ended: sign in again' })
+    }
+    actor = {
+      id: row.id,
+      name: row.name,
+      email: row.email,
+      role: row.role,
+      organisationId: row.org_id,
+      organisationName: row.org_name,
+      organisationKind: row.org_kind,
+      supplierId: row.org_kind === 'supplier' ? row.org_id : row.supplier_id,
+    }
+    event.context.actor = actor
+  }
+  if (!roles.includes(actor.role)) forbidden()
+  return actor
+}
+
+/** Columns that say who owns a record: the supplier that owns it and the team that runs it. */
+export interface OwnerColumns {
+  supplier: string
+  team: string
+}
+
+/** Restrict a query to what the actor may see: admins everything, the supplier its own, a team its own. */
+export function scopeQuery<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, cols: OwnerColumns): Q {
+  if (actor.role === 'admin') return qb
+  if (actor.organisationKind === 'supplier') return qb.where(cols.supplier, actor.organisationId) as Q
+  return qb.where(cols.team, actor.organisationId) as Q
+}
+
+export function canSee(actor: Actor, owner: { supplierId: number | null; teamId: number | null }): boolean {
+  if (actor.role === 'admin') return true
+  if (actor.organisationKind === 'supplier') return owner.supplierId === actor.organisationId
+  return owner.teamId === actor.organisationId
+}
+
+/** A record the actor may not see is answered exactly like one that does not exist. */
+export function assertVisible<T>(actor: Actor, record: T | undefined | null, owner: (r: T) => { supplierId: number | null; teamId: number | null }, what = 'Record'): T {
+  if (!record || !canSee(actor, owner(record))) notFound(what)
+  return record
+}

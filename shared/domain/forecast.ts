@@ -1,0 +1,260 @@
+// Life forecast over coming events. A projection from planned running and recent duty:
+// an aid to planning, never a substitute for the supplier's service instructions and inspection.
+
+import {
+  bandMidRpm,
+  evaluatePartLife,
+  type ComponentLimits,
+  type EngineTypeLifeConfig,
+  type LifeStatus,
+  type PartUsage,
+  type SessionUsage,
+} from './life'
+
+export interface PlannedEvent {
+  eventId: number
+  name: string
+  startsAt: string
+  plannedSeconds: number | null
+  plannedKm: number | null
+}
+
+/** do not use; see EngineDuty */
+export interface RecentDuty {
+  eqPerRunningHourByExponent?: never
+}
+
+export interface EngineDuty {
+  /** fraction of running time per band over recent sessions, sums to 1, or [] when none */
+  histogramShare: number[]
+  kmPerHour: number | null
+  overRevsPerHour: Record<string, number>
+}
+
+export interface EventRef {
+  eventId: number
+  name: string
+}
+
+export interface PartForecast {
+  warningAt: EventRef | null
+  limitAt: EventRef | null
+  fractionAfter: { eventId: number; fraction: number; status: LifeStatus }[]
+  /** true when no recent histogram was known and running was assumed at the reference rpm */
+  assumedDuty: boolean
+}
+
+export interface PartForecastDetail extends PartForecast {
+  alreadyWarning: boolean
+  alreadyOver: boolean
+  /** first event after which the projected fraction reaches dueLevel (null if never or already due) */
+  dueAt: EventRef | null
+  alreadyDue: boolean
+  /** true when some event had neither planned km nor a known km per hour: distance was not projected for it */
+  kmUnknown: boolean
+}
+
+export interface ForecastOptions {
+  defaultSecondsPerEvent: number
+  /** project over-revs at the recent rate per running hour; off by default because over-revs cannot be planned */
+  projectOverRevs?: boolean
+}
+
+const SECONDS_PER_HOUR = 3600
+
+function timeOf(iso: string): number {
+  const t = Date.parse(iso)
+  if (Number.isNaN(t)) throw new RangeError(`not an ISO date-time: ${iso}`)
+  return t
+}
+
+function inDateOrder(events: PlannedEvent[]): PlannedEvent[] {
+  return [...events].sort((a, b) => timeOf(a.startsAt) - timeOf(b.startsAt) || a.eventId - b.eventId)
+}
+
+/** Duty of the last N sessions by `at`. */
+export function recentDuty(sessions: SessionUsage[], lastN: number): EngineDuty {
+  const recent = [...sessions]
+    .sort((a, b) => timeOf(b.at) - timeOf(a.at) || b.sessionId - a.sessionId)
+    .slice(0, Math.max(0, Math.floor(lastN)))
+  const bandSeconds: number[] = []
+  let runningSeconds = 0
+  let km = 0
+  const overRevs: Record<string, number> = {}
+  for (const s of recent) {
+    s.histogram.forEach((sec, i) => {
+      bandSeconds[i] = (bandSeconds[i] ?? 0) + sec
+    })
+    runningSeconds += s.runningSeconds
+    km += s.distanceKm
+    for (const ev of s.overRevs) overRevs[ev.bandId] = (overRevs[ev.bandId] ?? 0) + 1
+  }
+  const histogramTotal = bandSeconds.reduce((t, x) => t + (x ?? 0), 0)
+  const histogramShare = histogramTotal > 0 ? Array.from(bandSeconds, (x) => (x ?? 0) / histogramTotal) : []
+  const hours = runningSeconds / SECONDS_PER_HOUR
+  const overRevsPerHour: Record<string, number> = {}
+  if (hours > 0) for (const [id, n] of Object.entries(overRevs)) overRevsPerHour[id] = n / hours
+  return { histogramShare, kmPerHour: hours > 0 ? km / hours : null, overRevsPerHour }
+}
+
+/** Equivalent hours per running hour; 1 when no duty is known (running at the reference rpm assumed). */
+export function eqPerRunningHour(duty: EngineDuty, cfg: EngineTypeLifeConfig, exponent: number): number {
+  if (duty.histogramShare.length === 0) return 1
+  let rate = 0
+  duty.histogramShare.forEach((share, i) => {
+    if (share === 0) return
+    rate += share * Math.pow(bandMidRpm(i, cfg.bandWidthRpm) / cfg.referenceRpm, exponent)
+  })
+  return rate
+}
+
+/**
+ * Projects a part's life over coming events (taken in date order). Running per event from
+ * plannedSeconds, else opts.defaultSecondsPerEvent; km from plannedKm, else running x km per hour;
+ * equivalent hours from running x eqPerRunningHour. Over-rev counts stay as they are unless
+ * opts.projectOverRevs. warningAt / dueAt / limitAt are null when never reached, and also when
+ * already reached now (alreadyWarning / alreadyDue / alreadyOver say so).
+ */
+export function forecastPart(
+  current: PartUsage,
+  limits: ComponentLimits,
+  cfg: EngineTypeLifeConfig,
+  events: PlannedEvent[],
+  duty: EngineDuty,
+  opts: ForecastOptions,
+): PartForecastDetail {
+  const eqRate = eqPerRunningHour(duty, cfg, limits.damageExponent)
+  const nowStatus = evaluatePartLife(current, limits, cfg).status
+  const alreadyWarning = nowStatus !== 'ok'
+  const alreadyDue = nowStatus === 'due' || nowStatus === 'over'
+  const alreadyOver = nowStatus === 'over'
+
+  let usage: PartUsage = { ...current, overRevCounts: { ...current.overRevCounts } }
+  let warningAt: EventRef | null = null
+  let dueAt: EventRef | null = null
+  let limitAt: EventRef | null = null
+  let kmUnknown = false
+  const fractionAfter: PartForecast['fractionAfter'] = []
+
+  for (const ev of inDateOrder(events)) {
+    const hours = (ev.plannedSeconds ?? opts.defaultSecondsPerEvent) / SECONDS_PER_HOUR
+    let km = 0
+    if (ev.plannedKm !== null) km = ev.plannedKm
+    else if (duty.kmPerHour !== null) km = hours * duty.kmPerHour
+    else kmUnknown = true
+    const overRevCounts = { ...usage.overRevCounts }
+    if (opts.projectOverRevs) {
+      for (const [id, rate] of Object.entries(duty.overRevsPerHour)) {
+        overRevCounts[id] = (overRevCounts[id] ?? 0) + rate * hours
+      }
+    }
+    usage = {
+      ...usage,
+      hours: usage.hours + hours,
+      km: usage.km + km,
+      eqHours: usage.eqHours + hours * eqRate,
+      overRevCounts,
+    }
+    const life = evaluatePartLife(usage, limits, cfg)
+    fractionAfter.push({ eventId: ev.eventId, fraction: life.fraction, status: life.status })
+    const ref = { eventId: ev.eventId, name: ev.name }
+    if (!alreadyWarning && warningAt === null && life.status !== 'ok') warningAt = ref
+    if (!alreadyDue && dueAt === null && (life.status === 'due' || life.status === 'over')) dueAt = ref
+    if (!alreadyOver && limitAt === null && life.status === 'over') limitAt = ref
+  }
+
+  return {
+    warningAt,
+    limitAt,
+    dueAt,
+    fractionAfter,
+    assumedDuty: duty.histogramShare.length === 0,
+    alreadyWarning,
+    alreadyDue,
+    alreadyOver,
+    kmUnknown,
+  }
+}
+
+export type CanFinishReason = 'already-over' | 'inspection' | 'projected-over' | 'no-projection'
+
+export interface EngineForecast {
+  warningAt: EventRef | null
+  limitAt: EventRef | null
+  canFinish: {
+    eventId: number
+    name: string
+    ok: boolean
+    worstFraction: number
+    governingPartId: number | null
+    /** why ok is false, null when ok (optional detail) */
+    reason?: CanFinishReason | null
+  }[]
+  alreadyWarning?: boolean
+  alreadyOver?: boolean
+}
+
+export interface EnginePartInput {
+  componentId: number
+  forecast: PartForecast & { alreadyOver: boolean; alreadyWarning?: boolean }
+  immediateInspection: boolean
+}
+
+/**
+ * Engine view over its parts. An event cannot be finished when any part is already over,
+ * flagged for immediate inspection, projected at or over its limit after the event, or has
+ * no projection for it (an unknown is never reported as fit to run).
+ */
+export function forecastEngine(parts: EnginePartInput[], events: PlannedEvent[]): EngineForecast {
+  const ordered = inDateOrder(events)
+  const order = new Map(ordered.map((e, i) => [e.eventId, i]))
+  const earliest = (refs: (EventRef | null)[]): EventRef | null => {
+    let best: EventRef | null = null
+    for (const r of refs) {
+      if (r === null) continue
+      const i = order.get(r.eventId) ?? Infinity
+      if (best === null || i < (order.get(best.eventId) ?? Infinity)) best = r
+    }
+    return best
+  }
+
+  const anyOver = parts.some((p) => p.forecast.alreadyOver)
+  const anyInspection = parts.some((p) => p.immediateInspection)
+
+  const canFinish = ordered.map((ev) => {
+    let worstFraction = 0
+    let governingPartId: number | null = null
+    let projectedOver = false
+    let missing = false
+    for (const p of parts) {
+      const after = p.forecast.fractionAfter.find((f) => f.eventId === ev.eventId)
+      if (after === undefined) {
+        missing = true
+        continue
+      }
+      if (governingPartId === null || after.fraction > worstFraction) {
+        worstFraction = after.fraction
+        governingPartId = p.componentId
+      }
+      if (after.status === 'over' || !(after.fraction < 1)) projectedOver = true
+    }
+    const reason: CanFinishReason | null = anyOver
+      ? 'already-over'
+      : anyInspection
+        ? 'inspection'
+        : projectedOver
+          ? 'projected-over'
+          : missing
+            ? 'no-projection'
+            : null
+    return { eventId: ev.eventId, name: ev.name, ok: reason === null, worstFraction, governingPartId, reason }
+  })
+
+  return {
+    warningAt: earliest(parts.map((p) => p.forecast.warningAt)),
+    limitAt: earliest(parts.map((p) => p.forecast.limitAt)),
+    canFinish,
+    alreadyWarning: parts.some((p) => p.forecast.alreadyWarning === true || p.forecast.alreadyOver),
+    alreadyOver: anyOver,
+  }
+}
