@@ -6,6 +6,8 @@ export async function up(knex: Knex) {
     t.integer('supplier_id').unsigned().notNullable().references('organisations.id')
     t.string('code', 40).notNullable().unique()
     t.string('name', 120).notNullable()
+    // Which calendar the engines of this type run (events carry the same series name).
+    t.string('series', 80).notNullable()
     t.integer('cylinders').unsigned().notNullable()
     t.string('layout', 40).notNullable()
     t.decimal('bore_mm', 8, 3).notNullable()
@@ -61,6 +63,8 @@ export async function up(knex: Knex) {
     t.enum('status', ['serviceable', 'installed', 'quarantined', 'scrapped']).notNullable().defaultTo('serviceable')
     t.timestamp('born_at').notNullable().defaultTo(knex.fn.now())
     t.string('notes', 500).nullable()
+    // Over-revs before this moment no longer demand an immediate inspection (it was done and signed off).
+    t.timestamp('inspection_cleared_at', { precision: 3 }).nullable()
     t.index(['component_type_id', 'status'])
   })
 
