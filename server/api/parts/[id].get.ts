@@ -1,0 +1,8 @@
+import { FLEET_READERS } from '#shared/roles'
+import { partHistory } from '../../services/part-history'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireActor(event, FLEET_READERS)
+  const { id } = readValidParams(event, IdParams)
+  return partHistory(useDb(), actor, id)
+})

@@ -1,0 +1,130 @@
+// Back-to-birth history of parts and per-engine chart series, derived from sessions and installations.
+import type { Knex } from 'knex'
+import { addSession, emptyUsage, evaluatePartLife, sessionsForComponent, type EngineSession } from '#shared/domain/life'
+import type { Actor } from '../utils/guard'
+import { canSee } from '../utils/guard'
+import { notFound } from '../utils/errors'
+import { iso } from '../utils/db'
+import { SESSION_LIFE_COLUMNS, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toInstallation } from './fleet-data'
+import { fleetLife } from './life'
+
+async function sessionsOfEngines(db: Knex, engineIds: number[]) {
+  if (!engineIds.length) return []
+  const rows = await db('sessions').whereIn('engine_id', engineIds).select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id'])
+  return rows.map(toEngineSession)
+}
+
+/** Cumulative life after each session; each session is read with the band width it was binned at. */
+function timelineFor(sessions: (EngineSession & { bandWidthRpm: number })[], cfg: ReturnType<typeof lifeConfig>, limits: ReturnType<typeof limitsOf>) {
+  let usage = emptyUsage()
+  return sessions.map((s) => {
+    usage = addSession(usage, s, s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm }, limits)
+    const life = evaluatePartLife(usage, limits, cfg)
+    return { at: s.at, fraction: life.fraction, status: life.status }
+  })
+}
+
+export async function partHistory(db: Knex, actor: Actor, componentId: number) {
+  const comp = await db('components').where('id', componentId).first()
+  if (!comp) notFound('Part')
+  const installRows = await db('installations as i').join('engines as e', 'e.id', 'i.engine_id').where('i.component_id', componentId).orderBy('i.from_at').select('i.*', 'e.serial as engine_serial', 'e.team_id', 'e.supplier_id', 'e.engine_type_id')
+  const current = installRows.find((r) => r.to_at === null)
+  const isSupplierSide = actor.role === 'admin' || (actor.organisationKind === 'supplier' && comp.supplier_id === actor.organisationId)
+  // A team sees a part while it sits in one of its engines; the supplier sees all of its parts.
+  if (!isSupplierSide && !(current && current.team_id === actor.organisationId)) notFound('Part')
+
+  const life = (await fleetLife(db)).parts.get(componentId)
+  const [componentType] = await loadComponentTypes(db, (qb) => qb.where('id', comp.component_type_id))
+  const engineTypeId = current?.engine_type_id ?? installRows[installRows.length - 1]?.engine_type_id
+  const [engineType] = engineTypeId ? await loadEngineTypes(db, (qb) => qb.where('id', engineTypeId)) : []
+
+  const installations = installRows.map(toInstallation)
+  const allSessions = await sessionsOfEngines(db, [...new Set(installRows.map((r) => r.engine_id))])
+  const mine = sessionsForComponent(componentId, installations, allSessions) as (EngineSession & { bandWidthRpm: number; eventId: number | null })[]
+  const visibleEngine = new Map(installRows.map((r) => [r.engine_id, canSee(actor, { supplierId: r.supplier_id, teamId: r.team_id })]))
+  const serialOf = new Map(installRows.map((r) => [r.engine_id, r.engine_serial]))
+  const eventNames = new Map(
+    (await db('events').whereIn('id', [...new Set(mine.map((s) => s.eventId).filter((x): x is number => x !== null))]).select('id', 'name')).map((e) => [e.id, e.name]),
+  )
+  const kinds = new Map((await db('sessions').whereIn('id', mine.map((s) => s.sessionId)).select('id', 'kind')).map((r) => [r.id, r.kind]))
+
+  const timeline = engineType && componentType ? timelineFor(mine, lifeConfig(engineType), limitsOf(componentType)) : []
+
+  return {
+    part: {
+      ...(life ?? {}),
+      componentId,
+      serial: comp.serial,
+      componentTypeId: comp.component_type_id,
+      typeName: componentType?.name ?? '',
+      category: componentType?.category ?? '',
+      componentStatus: comp.status,
+      batch: comp.batch ?? null,
+      bornAt: iso(comp.born_at),
+      engineId: current?.engine_id ?? null,
+      engineSerial: current?.engine_serial ?? null,
+      position: current?.position ?? null,
+    },
+    // Installations in another team's engines are shown without naming that engine.
+    installations: installRows.map((r) => ({
+      engineId: visibleEngine.get(r.engine_id) ? r.engine_id : null,
+      engineSerial: visibleEngine.get(r.engine_id) ? r.engine_serial : 'another engine',
+      position: r.position,
+      from: iso(r.from_at),
+      to: iso(r.to_at),
+    })),
+    sessions: mine
+      .filter((s) => visibleEngine.get(s.engineId))
+      .map((s) => ({
+        id: s.sessionId,
+        at: s.at,
+        engineSerial: serialOf.get(s.engineId),
+        kind: kinds.get(s.sessionId),
+        runningSeconds: s.runningSeconds,
+        distanceKm: s.distanceKm,
+        eventName: s.eventId ? (eventNames.get(s.eventId) ?? null) : null,
+      })),
+    timeline: timeline.map((t) => ({ at: t.at, fraction: t.fraction, status: t.status })),
+  }
+}
+
+/** Chart series for the engine page: worst life per component group over time, rev histogram, over-rev timeline. */
+export async function engineCharts(db: Knex, engineId: number) {
+  const engine = await db('engines').where('id', engineId).first()
+  const [engineType] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
+  const componentTypes = new Map((await loadComponentTypes(db)).map((c) => [c.id, c]))
+  const open = await db('installations as i').join('components as c', 'c.id', 'i.component_id').where('i.engine_id', engineId).whereNull('i.to_at').select('i.component_id', 'c.component_type_id')
+  const componentIds = open.map((r) => r.component_id)
+  const installations = componentIds.length ? (await db('installations').whereIn('component_id', componentIds)).map(toInstallation) : []
+  const sessions = await sessionsOfEngines(db, [...new Set([engineId, ...installations.map((i) => i.engineId)])])
+  const cfg = lifeConfig(engineType!)
+
+  const groups = new Map<string, Map<string, number>>()
+  for (const r of open) {
+    const ct = componentTypes.get(r.component_type_id)!
+    const series = timelineFor(sessionsForComponent(r.component_id, installations, sessions) as any, cfg, limitsOf(ct))
+    let g = groups.get(ct.category)
+    if (!g) groups.set(ct.category, (g = new Map()))
+    for (const p of series) g.set(p.at, Math.max(g.get(p.at) ?? 0, p.fraction))
+  }
+
+  const own = sessions.filter((s) => s.engineId === engineId)
+  const histogram: number[] = []
+  for (const s of own) {
+    // Sessions binned at another width are re-read onto the current bands by their midpoints.
+    s.histogram.forEach((sec, i) => {
+      const band = s.bandWidthRpm === cfg.bandWidthRpm ? i : Math.floor(((i + 0.5) * s.bandWidthRpm) / cfg.bandWidthRpm)
+      histogram[band] = (histogram[band] ?? 0) + sec
+    })
+  }
+  return {
+    lifeOverTime: [...groups.entries()].map(([category, points]) => ({
+      category,
+      points: [...points.entries()].sort((a, b) => a[0].localeCompare(b[0])).map(([at, fraction]) => ({ at, fraction })),
+    })),
+    histogram: { bandWidthRpm: cfg.bandWidthRpm, seconds: Array.from(histogram, (x) => x ?? 0) },
+    overRevs: own.flatMap((s) => s.overRevs.map((o) => ({ at: s.at, sessionId: s.sessionId, bandId: o.bandId, peakRpm: o.peakRpm, durationS: o.durationS }))),
+    revLimitRpm: engineType!.revLimitRpm,
+    overRevBands: engineType!.overRevBands,
+  }
+}

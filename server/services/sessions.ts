@@ -1,0 +1,105 @@
+// Storing a session (manual entry or logger import): checks against the engine type, one transaction, audited.
+import type { Knex } from 'knex'
+import type { ManualSessionInput } from '#shared/schemas/fleet'
+import type { Actor } from '../utils/guard'
+import { audit } from '../utils/audit'
+import { badRequest, conflict, notFound } from '../utils/errors'
+import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
+import { engineRowFor } from './fleet-scope'
+
+export interface SessionExtras {
+  lowOilPressure?: { startS: number; durationS: number; minBar: number }[]
+  maxRpm?: number | null
+  maxOilTempC?: number | null
+  maxWaterTempC?: number | null
+  maxSpeedKmh?: number | null
+  minOilPressureBar?: number | null
+  source?: 'manual' | 'logger'
+  fileKey?: string | null
+  fileName?: string | null
+  fileSha256?: string | null
+  details?: unknown
+}
+
+export function expectedBands(t: { revLimitRpm: number; bandWidthRpm: number }) {
+  return Math.ceil((t.revLimitRpm + 1000) / t.bandWidthRpm)
+}
+
+/** Checks a session against its engine and event; answers the engine type for the caller. */
+export async function checkSession(trx: Knex.Transaction, actor: Actor, input: ManualSessionInput, opts: { exactBands: boolean }) {
+  const engine = await engineRowFor(trx, actor, input.engineId, { forUpdate: true })
+  if (engine.status === 'teardown') conflict(`${engine.serial} is in teardown: sessions can be logged again after its rebuild is signed off`)
+  if (engine.status === 'retired') conflict(`${engine.serial} is retired`)
+  const [type] = await loadEngineTypes(trx, (qb) => qb.where('id', engine.engine_type_id))
+  if (input.eventId !== null) {
+    const ev = await trx('events').where('id', input.eventId).first()
+    if (!ev || ev.supplier_id !== engine.supplier_id) notFound('Event')
+    if (ev.series !== type!.series) badRequest(`Invalid input: eventId: ${ev.name} belongs to the ${ev.series}, not to ${type!.code} engines`)
+  }
+  const bands = expectedBands(type!)
+  if (opts.exactBands ? input.histogram.length !== bands : input.histogram.length > bands + 40) {
+    badRequest(`Invalid input: histogram: ${type!.code} has ${bands} bands of ${type!.bandWidthRpm} rpm (0 to ${bands * type!.bandWidthRpm} rpm); ${input.histogram.length} were given`)
+  }
+  const histogramSeconds = input.histogram.reduce((a, b) => a + b, 0)
+  if (Math.abs(histogramSeconds - input.runningSeconds) > Math.max(1, input.runningSeconds * 0.01)) {
+    badRequest(`Invalid input: histogram: the bands add up to ${(histogramSeconds / 60).toFixed(1)} min but the running time is ${(input.runningSeconds / 60).toFixed(1)} min`)
+  }
+  const bandIds = new Set(type!.overRevBands.map((b) => b.id))
+  input.overRevs.forEach((o, i) => {
+    if (!bandIds.has(o.bandId)) badRequest(`Invalid input: overRevs.${i}.bandId: ${type!.code} has no over-rev band "${o.bandId}" (bands: ${[...bandIds].join(', ')})`)
+  })
+  if (Date.parse(input.startedAt) < new Date(engine.built_at).getTime()) badRequest('Invalid input: startedAt: before the engine was built')
+  return { engine, type: type! }
+}
+
+export async function insertSession(trx: Knex.Transaction, actor: Actor, input: ManualSessionInput, engine: any, type: { bandWidthRpm: number }, extras: SessionExtras = {}) {
+  const [id] = await trx('sessions').insert({
+    engine_id: engine.id,
+    team_id: engine.team_id,
+    event_id: input.eventId,
+    kind: input.kind,
+    started_at: new Date(input.startedAt),
+    running_seconds: input.runningSeconds,
+    distance_km: input.distanceKm,
+    band_width_rpm: type.bandWidthRpm,
+    histogram: JSON.stringify(input.histogram),
+    over_revs: JSON.stringify(input.overRevs),
+    low_oil_pressure: JSON.stringify(extras.lowOilPressure ?? []),
+    max_rpm: extras.maxRpm ?? (input.overRevs.length ? Math.max(...input.overRevs.map((o) => o.peakRpm)) : null),
+    max_oil_temp_c: extras.maxOilTempC ?? null,
+    max_water_temp_c: extras.maxWaterTempC ?? null,
+    max_speed_kmh: extras.maxSpeedKmh ?? null,
+    min_oil_pressure_bar: extras.minOilPressureBar ?? null,
+    source: extras.source ?? 'manual',
+    file_key: extras.fileKey ?? null,
+    file_name: extras.fileName ?? null,
+    file_sha256: extras.fileSha256 ?? null,
+    details: extras.details === undefined ? null : JSON.stringify(extras.details),
+    created_by: actor.id,
+  })
+  await audit(trx, actor, {
+    entity: 'session',
+    entityId: id!,
+    action: 'create',
+    after: { engineId: engine.id, eventId: input.eventId, kind: input.kind, startedAt: input.startedAt, runningSeconds: input.runningSeconds, distanceKm: input.distanceKm, source: extras.source ?? 'manual' },
+  })
+  await bumpLifeRevision(trx)
+  return id!
+}
+
+export async function sessionById(db: Knex | Knex.Transaction, id: number) {
+  const row = await db('sessions as s')
+    .join('engines as e', 'e.id', 's.engine_id')
+    .leftJoin('events as ev', 'ev.id', 's.event_id')
+    .where('s.id', id)
+    .first('s.*', 'e.serial as engine_serial', 'e.supplier_id', 'ev.name as event_name')
+  return row
+}
+
+export async function createManualSession(db: Knex, actor: Actor, input: ManualSessionInput) {
+  return db.transaction(async (trx) => {
+    const { engine, type } = await checkSession(trx, actor, input, { exactBands: true })
+    const id = await insertSession(trx, actor, input, engine, type)
+    return toSessionDto(await sessionById(trx, id))
+  })
+}

@@ -1,0 +1,94 @@
+// Schemas shared by the forms and the API for the fleet model.
+import { z } from 'zod'
+
+const positive = (what: string) => z.number({ error: `${what} must be a number` }).positive(`${what} must be above zero`)
+const nullablePositive = z.number().positive('must be above zero').nullable()
+
+export const OverRevBandSchema = z.object({
+  id: z.string().trim().min(1).max(20),
+  label: z.string().trim().min(1).max(80),
+  minRpm: z.number().int().positive(),
+  minDurationS: z.number().min(0).max(60),
+  hysteresisRpm: z.number().min(0).max(2000),
+})
+
+export const EngineTypeUpdateSchema = z
+  .object({
+    name: z.string().trim().min(2).max(120),
+    revLimitRpm: z.number().int().min(1000).max(25000),
+    idleRpm: z.number().int().min(0).max(6000),
+    bandWidthRpm: z.number().int().min(50).max(2000),
+    referenceRpm: z.number().int().min(1000).max(25000),
+    maxGapS: positive('maxGapS').max(60),
+    reciprocatingMassKg: nullablePositive,
+    overRevBands: z.array(OverRevBandSchema).min(1).max(6),
+    lowOilPressure: z.object({ belowBar: z.number().min(0).max(20), aboveRpm: z.number().min(0).max(25000), minDurationS: z.number().min(0).max(60) }),
+  })
+  .partial()
+  .refine((v) => Object.keys(v).length > 0, 'nothing to change')
+  .refine((v) => !v.overRevBands || new Set(v.overRevBands.map((b) => b.id)).size === v.overRevBands.length, { message: 'band ids must be unique', path: ['overRevBands'] })
+
+export const ComponentTypeUpdateSchema = z
+  .object({
+    name: z.string().trim().min(2).max(120),
+    limitHours: nullablePositive,
+    limitKm: nullablePositive,
+    limitEqHours: nullablePositive,
+    limitOverRev: z.record(z.string().min(1).max(20), z.number().int().min(0).max(10000)),
+    immediateInspectionBand: z.string().min(1).max(20).nullable(),
+    warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
+    dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
+    damageExponent: z.number().min(0).max(40),
+  })
+  .partial()
+  .refine((v) => Object.keys(v).length > 0, 'nothing to change')
+  .refine((v) => v.warningLevel === undefined || v.dueLevel === undefined || v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
+
+export const SESSION_KINDS = ['practice', 'qualifying', 'race', 'test', 'bench'] as const
+
+export const OverRevEventSchema = z.object({
+  bandId: z.string().min(1).max(20),
+  peakRpm: z.number().int().positive().max(30000),
+  durationS: z.number().min(0).max(600),
+  startS: z.number().min(0).default(0),
+})
+
+export const ManualSessionSchema = z.object({
+  engineId: z.number().int().positive(),
+  eventId: z.number().int().positive().nullable().default(null),
+  kind: z.enum(SESSION_KINDS),
+  startedAt: z.iso.datetime({ offset: true, error: 'must be a date-time such as 2026-11-28T14:00:00Z' }),
+  runningSeconds: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(48 * 3600, 'must be at most 48 h'),
+  distanceKm: z.number().min(0, 'must not be negative').max(10000).default(0),
+  histogram: z.array(z.number().min(0, 'must not be negative').max(48 * 3600)).min(1).max(200),
+  overRevs: z.array(OverRevEventSchema).max(500).default([]),
+})
+export type ManualSessionInput = z.infer<typeof ManualSessionSchema>
+
+export const PlanSchema = z.object({
+  chassis: z.string().trim().max(40).nullable().default(null),
+  plannedSeconds: z.number().int().min(0).max(48 * 3600).nullable().default(null),
+  plannedKm: z.number().min(0).max(10000).nullable().default(null),
+})
+
+export const InstallSchema = z.object({
+  position: z.string().trim().min(1).max(40),
+  serial: z.string().trim().min(1).max(60),
+  at: z.iso.datetime({ offset: true }).optional(),
+})
+
+export const RemoveSchema = z.object({
+  at: z.iso.datetime({ offset: true }).optional(),
+  status: z.enum(['serviceable', 'quarantined', 'scrapped']).default('serviceable'),
+})
+
+export const EventCreateSchema = z.object({
+  name: z.string().trim().min(2).max(120),
+  series: z.string().trim().min(2).max(80),
+  track: z.string().trim().min(2).max(120),
+  trackLengthKm: z.number().positive().max(100),
+  startsAt: z.iso.datetime({ offset: true }),
+  endsAt: z.iso.datetime({ offset: true }),
+  plannedSeconds: z.number().int().min(0).max(48 * 3600).nullable().default(null),
+  plannedKm: z.number().min(0).max(10000).nullable().default(null),
+}).refine((v) => Date.parse(v.endsAt) > Date.parse(v.startsAt), { message: 'must be after startsAt', path: ['endsAt'] })
