@@ -1,0 +1,217 @@
+import { beforeAll, describe, expect, it } from 'vitest'
+import { db, signIn, USERS, type Client } from './helpers'
+
+let supplier: Client
+let managerA: Client
+let managerB: Client
+let raceA: Client
+
+const engineId = async (serial: string) => (await db()('engines').where({ serial }).first()).id as number
+const installationAt = (engine: number, position: string) => db()('installations').where({ engine_id: engine, position }).whereNull('to_at').first()
+const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
+
+beforeAll(async () => {
+  supplier = await signIn(USERS.supplierEngineer)
+  managerA = await signIn(USERS.managerA)
+  managerB = await signIn(USERS.managerB)
+  raceA = await signIn(USERS.raceA)
+})
+
+describe('team scoping', () => {
+  it('shows a team only its own engines and the supplier every engine', async () => {
+    const a = await managerA.get('/api/board')
+    expect(a.status).toBe(200)
+    expect(new Set(a.body.engines.map((e: any) => e.teamName))).toEqual(new Set(['Marlowe Vane Racing']))
+    const all = await supplier.get('/api/board')
+    expect(all.body.engines).toHaveLength(13)
+  })
+
+  it('answers 404 for another team\'s engine, sessions, parts and plans', async () => {
+    const id = await engineId('KV8-1101') // Marlowe's
+    const session = await db()('sessions').where('engine_id', id).first()
+    const part = await installationAt(id, 'crank')
+    for (const path of [`/api/engines/${id}`, `/api/engines/${id}/sessions`, `/api/engines/${id}/charts`, `/api/sessions/${session.id}`, `/api/parts/${part.component_id}`]) {
+      const res = await managerB.get(path)
+      expect(res.status, path).toBe(404)
+      expect(JSON.stringify(res.body)).not.toContain('KV8-1101')
+    }
+    const ev = await db()('events').where('series', 'Meridian Endurance GT').where('starts_at', '>', new Date()).orderBy('starts_at').first()
+    expect((await managerB.put(`/api/events/${ev.id}/plans/${id}`, { chassis: 'X' })).status).toBe(404)
+    const parts = await managerB.get('/api/parts')
+    expect(parts.body.some((p: any) => p.engineSerial === 'KV8-1101')).toBe(false)
+  })
+})
+
+describe('life accounting through the API', () => {
+  it('matches the board to the engine page and names the governing limit', async () => {
+    const board = await supplier.get('/api/board?q=KV8-1101')
+    const row = board.body.engines[0]
+    const detail = await supplier.get(`/api/engines/${row.id}`)
+    const worst = detail.body.parts.reduce((w: any, p: any) => (p.fraction > w.fraction ? p : w))
+    expect(row.worst.fraction).toBeCloseTo(worst.fraction, 12)
+    expect(row.worst.governing.label).toBe(worst.governing.label)
+    // 7 rounds of endurance running put the bearing shells past 90 % of their 57 h: due (demo scenario).
+    expect(row.worst.status).toBe('due')
+    expect(worst.typeName).toBe('Bearing shell set')
+    expect(worst.governing.kind).toBe('hours')
+    expect(worst.governing.limit).toBe(57)
+    const sessionSeconds = (await db()('sessions').where('engine_id', row.id).sum({ s: 'running_seconds' }).first())!.s
+    expect(worst.hours).toBeCloseTo(Number(sessionSeconds) / 3600, 6)
+  })
+
+  it('flags the engine with a teardown-band over-rev for immediate inspection and says it cannot run', async () => {
+    const res = await supplier.get('/api/board?q=KV8-1102')
+    const e = res.body.engines[0]
+    expect(e.overRevFlags.immediateInspection).toBe(true)
+    expect(e.nextEvent.ok).toBe(false)
+    expect(e.nextEvent.reason).toBe('already-over')
+  })
+
+  it('carries a part\'s life with it into another engine', async () => {
+    const from = await engineId('KV8-1103')
+    const to = await engineId('KV8-1203')
+    const moving = await installationAt(from, 'rod-1')
+    const before = await supplier.get(`/api/parts/${moving.component_id}`)
+    expect(before.body.part.hours).toBeGreaterThan(1)
+    const displaced = await installationAt(to, 'rod-1')
+
+    expect((await supplier.post(`/api/installations/${moving.id}/remove`, { status: 'serviceable' })).status).toBe(200)
+    expect((await supplier.post(`/api/installations/${displaced.id}/remove`, { status: 'serviceable' })).status).toBe(200)
+    const serial = before.body.part.serial
+    const fit = await supplier.post(`/api/engines/${to}/installations`, { position: 'rod-1', serial })
+    expect(fit.status).toBe(201)
+
+    const after = await supplier.get(`/api/parts/${moving.component_id}`)
+    expect(after.body.part.engineSerial).toBe('KV8-1203')
+    expect(after.body.part.hours).toBeCloseTo(before.body.part.hours, 9)
+    expect(after.body.part.fraction).toBeCloseTo(before.body.part.fraction, 9)
+    expect(after.body.installations.map((i: any) => i.engineSerial)).toEqual(['KV8-1103', 'KV8-1203'])
+    const engine = await supplier.get(`/api/engines/${to}`)
+    const rod1 = engine.body.parts.find((p: any) => p.position === 'rod-1')
+    expect(rod1.serial).toBe(serial)
+    expect(rod1.hours).toBeCloseTo(before.body.part.hours, 9)
+    // The engine itself has never run: its own hours stay at zero while the part brings its own.
+    expect(engine.body.totalHours).toBe(0)
+    const audits = await db()('audit_log').where('entity', 'installation').whereIn('action', ['fit', 'remove'])
+    expect(audits.length).toBeGreaterThanOrEqual(3)
+  })
+
+  it('moves every affected fraction at once when a limit changes, and audits it', async () => {
+    const ct = await db()('component_types').where('code', 'KV8-BRG').first()
+    const id = await engineId('KV8-1201')
+    const before = (await supplier.get(`/api/engines/${id}`)).body.parts.find((p: any) => p.position === 'bearings')
+    expect(before.governing.limit).toBe(57)
+    const patched = await supplier.patch(`/api/component-types/${ct.id}`, { limitHours: 28.5 })
+    expect(patched.status).toBe(200)
+    const after = (await supplier.get(`/api/engines/${id}`)).body.parts.find((p: any) => p.position === 'bearings')
+    expect(after.fraction).toBeCloseTo(before.fraction * 2, 9)
+    expect(after.status).toBe('over')
+    const audit = await db()('audit_log').where({ entity: 'component_type', entity_id: String(ct.id), action: 'update-limits' }).orderBy('id', 'desc').first()
+    const parse = (v: any) => (typeof v === 'string' ? JSON.parse(v) : v)
+    expect(parse(audit.before_value).limitHours).toBe(57)
+    expect(parse(audit.after_value).limitHours).toBe(28.5)
+    expect((await supplier.patch(`/api/component-types/${ct.id}`, { limitHours: 57 })).status).toBe(200)
+  })
+
+  it('feeds a planned running time into "can this engine run the event to the end?"', async () => {
+    const id = await engineId('KV8-1202')
+    const engine = (await supplier.get(`/api/engines/${id}`)).body
+    const next = engine.canFinish[0]
+    expect(next.ok).toBe(true)
+    // Planning 30 h of running at that event takes the bearing shells (57 h limit, about 38 h used) past the limit.
+    const plan = await managerB.put(`/api/events/${next.eventId}/plans/${id}`, { chassis: 'TAM-GT-09', plannedSeconds: 30 * 3600, plannedKm: null })
+    expect(plan.status).toBe(200)
+    const after = (await supplier.get(`/api/engines/${id}`)).body
+    const cell = after.canFinish.find((c: any) => c.eventId === next.eventId)
+    expect(cell.ok).toBe(false)
+    expect(cell.reason).toBe('projected-over')
+    expect(after.limitAt.eventId).toBe(next.eventId)
+    await managerB.put(`/api/events/${next.eventId}/plans/${id}`, { chassis: 'TAM-GT-09', plannedSeconds: null, plannedKm: null })
+  })
+})
+
+describe('bad input changes nothing', () => {
+  const validSession = async () => {
+    const id = await engineId('KV8-1103')
+    const histogram = Array(21).fill(0)
+    histogram[16] = 1800
+    histogram[17] = 1800
+    return { engineId: id, eventId: null, kind: 'test', startedAt: new Date().toISOString(), runningSeconds: 3600, distanceKm: 150, histogram, overRevs: [] }
+  }
+
+  it('stores a valid manual session and its life shows at once', async () => {
+    const input = await validSession()
+    const before = (await raceA.get(`/api/engines/${input.engineId}`)).body.totalHours
+    const res = await raceA.post('/api/sessions', input)
+    expect(res.status).toBe(201)
+    expect(res.body.runningSeconds).toBe(3600)
+    const after = (await raceA.get(`/api/engines/${input.engineId}`)).body.totalHours
+    expect(after - before).toBeCloseTo(1, 9)
+  })
+
+  it.each([
+    ['negative running time', (s: any) => ({ ...s, runningSeconds: -5 }), 400, /runningSeconds: must not be negative/],
+    ['histogram with the wrong number of bands', (s: any) => ({ ...s, histogram: [3600] }), 400, /histogram: KV8-45 has 21 bands of 500 rpm/],
+    ['histogram that does not add up to the running time', (s: any) => ({ ...s, runningSeconds: 7200 }), 400, /histogram: the bands add up to 60\.0 min but the running time is 120\.0 min/],
+    ['an over-rev in a band the engine type does not have', (s: any) => ({ ...s, overRevs: [{ bandId: 'Z', peakRpm: 9999, durationS: 1, startS: 0 }] }), 400, /overRevs\.0\.bandId/],
+    ['an unknown engine', (s: any) => ({ ...s, engineId: 999999 }), 404, /Engine not found/],
+    ['a bad date', (s: any) => ({ ...s, startedAt: 'yesterday' }), 400, /startedAt/],
+  ])('refuses %s', async (_name, mutate, status, message) => {
+    const before = await count('sessions')
+    const audits = await count('audit_log')
+    const res = await raceA.post('/api/sessions', mutate(await validSession()))
+    expect(res.status).toBe(status)
+    expect(res.body.message).toMatch(message)
+    expect(await count('sessions')).toBe(before)
+    expect(await count('audit_log')).toBe(audits)
+  })
+
+  it('refuses a part already installed elsewhere, a filled position, a wrong type and an unknown serial', async () => {
+    const target = await engineId('KV8-1203')
+    const elsewhere = await db()('components as c').join('installations as i', 'i.component_id', 'c.id').where('i.engine_id', await engineId('KV8-1101')).where('i.position', 'rod-2').whereNull('i.to_at').first('c.serial')
+    const spareRod = await db()('components as c').join('component_types as t', 't.id', 'c.component_type_id').where({ 't.code': 'KV8-ROD', 'c.status': 'serviceable' }).first('c.serial')
+    const spareCrank = await db()('components as c').join('component_types as t', 't.id', 'c.component_type_id').where({ 't.code': 'KV8-CRK', 'c.status': 'serviceable' }).first('c.serial')
+    const installs = await count('installations')
+
+    const twice = await supplier.post(`/api/engines/${target}/installations`, { position: 'rod-2', serial: elsewhere.serial })
+    expect(twice.status).toBe(409)
+    expect(twice.body.message).toMatch(/already installed in KV8-1101 at rod-2/)
+    const filled = await supplier.post(`/api/engines/${target}/installations`, { position: 'rod-3', serial: spareRod.serial })
+    expect(filled.status).toBe(409)
+    expect(filled.body.message).toMatch(/Conrod 3 of KV8-1203 already holds/)
+    const wrongType = await supplier.post(`/api/engines/${target}/installations`, { position: 'rod-3', serial: spareCrank.serial })
+    expect(wrongType.status).toBe(400)
+    expect(wrongType.body.message).toMatch(/is a Crankshaft \(KV8-CRK\); Conrod 3 takes a Connecting rod/)
+    const unknown = await supplier.post(`/api/engines/${target}/installations`, { position: 'rod-3', serial: 'NO-SUCH-PART' })
+    expect(unknown.status).toBe(404)
+    expect(await count('installations')).toBe(installs)
+  })
+
+  it('refuses limits that make no sense, naming the field', async () => {
+    const ct = await db()('component_types').where('code', 'KV8-ROD').first()
+    const res = await supplier.patch(`/api/component-types/${ct.id}`, { limitHours: -3 })
+    expect(res.status).toBe(400)
+    expect(res.body.message).toMatch(/limitHours/)
+    const levels = await supplier.patch(`/api/component-types/${ct.id}`, { warningLevel: 0.95 })
+    expect(levels.status).toBe(400)
+    expect(levels.body.message).toMatch(/dueLevel: must be above the warning level/)
+  })
+})
+
+describe('roles', () => {
+  it.each([
+    [USERS.raceA, 'PATCH', '/api/component-types/1', { limitHours: 10 }, 403],
+    [USERS.managerA, 'PATCH', '/api/engine-types/1', { idleRpm: 1400 }, 403],
+    [USERS.mechanicA, 'POST', '/api/sessions', {}, 403],
+    [USERS.raceA, 'GET', '/api/users', undefined, 403],
+    [USERS.raceA, 'PUT', '/api/events/9/plans/1', { chassis: null }, 403],
+    [USERS.mechanicA, 'GET', '/api/board', undefined, 200],
+    [USERS.supplierMechanic, 'GET', '/api/engines', undefined, 200],
+    [USERS.managerA, 'GET', '/api/users', undefined, 200],
+    [USERS.supplierEngineer, 'PATCH', '/api/engine-types/1', { idleRpm: 1500 }, 200],
+  ])('%s %s %s answers %i', async (email, method, path, body, status) => {
+    const client = await signIn(email)
+    const res = await client.request(method, path, body)
+    expect(res.status).toBe(status)
+  })
+})
