@@ -1,11 +1,19 @@
 import type { Knex } from 'knex'
 import * as foundation from './20261202_01_foundation'
 import * as fleet from './20261202_02_fleet'
+import * as logger from './20261202_03_logger'
+import * as alerts from './20261202_04_alerts'
+import * as oil from './20261202_05_oil'
+import * as teardown from './20261202_06_teardown'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
   '20261202_01_foundation': foundation,
   '20261202_02_fleet': fleet,
+  '20261202_03_logger': logger,
+  '20261202_04_alerts': alerts,
+  '20261202_05_oil': oil,
+  '20261202_06_teardown': teardown,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
