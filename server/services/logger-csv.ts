@@ -11,7 +11,7 @@
 //   invalid_mapping      the mapping does not satisfy LoggerMappingSchema              400
 //   empty_file           no bytes, or only blank lines / a BOM                          400
 //   not_text             NUL bytes or invalid UTF-8 within the first 8 KiB / the header 400
-//   invalid_utf8         invalid UTF-8 further on (row = first line of the bad chunk)    400
+//   invalid_utf8         invalid UTF-8 further on; row                                   400
 //   file_too_large       more than maxBytes (default 200 MiB)                           413
 //   line_too_long        a line longer than maxLineLength bytes (default 4096); row     400
 //   missing_column       a mapped column is not in the header; column                   400
@@ -163,6 +163,7 @@ class LoggerCsvReader {
   private readonly hash = createHash('sha256')
   // UTF-8 bytes of a character split across chunks, carried to the next chunk
   private carry: Buffer | null = null
+  private carryLine = 0
   private decodedAny = false
   bytes = 0
 
@@ -238,18 +239,19 @@ class LoggerCsvReader {
         }
       }
     }
+    const lineAtChunk = this.lineNo // 0-based line where this chunk starts
     this.scanLines(buf)
-
-    const lineAtChunk = this.lineNo
     this.text(this.decode(buf, before, lineAtChunk))
     this.onProgress?.(this.bytes)
   }
 
   // isUtf8 (simdutf) plus toString is several times faster than a fatal TextDecoder here.
-  private decode(chunk: Buffer, byteOffset: number, line: number): string {
+  private decode(chunk: Buffer, byteOffset: number, chunkLine: number): string {
     let buf = chunk
+    let line = chunkLine
     if (this.carry) {
       buf = Buffer.concat([this.carry, chunk])
+      line = this.carryLine
       this.carry = null
     }
     // hold back an incomplete multi-byte sequence at the end
@@ -265,9 +267,10 @@ class LoggerCsvReader {
     }
     if (cut < buf.length) {
       this.carry = Buffer.from(buf.subarray(cut))
+      this.carryLine = this.lineNo
       buf = buf.subarray(0, cut)
     }
-    if (!isUtf8(buf)) this.throwBadUtf8(byteOffset, line)
+    if (!isUtf8(buf)) this.throwBadUtf8(byteOffset, line + this.linesBeforeBadUtf8(buf))
     let text = buf.toString('utf8')
     if (!this.decodedAny && text.length > 0) {
       this.decodedAny = true
@@ -304,11 +307,25 @@ class LoggerCsvReader {
     }
   }
 
+  /** Only on failure: complete lines of buf before the one holding the bad bytes. */
+  private linesBeforeBadUtf8(buf: Buffer): number {
+    let lines = 0
+    let from = 0
+    for (;;) {
+      const at = buf.indexOf(this.newlineByte, from)
+      const end = at < 0 ? buf.length : at
+      if (!isUtf8(buf.subarray(from, end))) return lines
+      if (at < 0) return lines
+      lines++
+      from = at + 1
+    }
+  }
+
   private throwBadUtf8(byteOffset: number, line: number): never {
     if (byteOffset < TEXT_SNIFF_BYTES || !this.parser) {
       throw new LoggerImportError('not_text', 'The file is not a text CSV (it is not valid UTF-8)')
     }
-    throw new LoggerImportError('invalid_utf8', `The file is not valid UTF-8 text at or after row ${line + 1}`, { row: line + 1 })
+    throw new LoggerImportError('invalid_utf8', `Row ${line + 1} is not valid UTF-8 text`, { row: line + 1 })
   }
 
   private throwTooManyBad(allowed: number): never {

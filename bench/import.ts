@@ -1,0 +1,126 @@
+// Import benchmark: analyzeLoggerStream against papaparse alone on the same synthetic
+// 100 Hz, 10-channel logger files (1 h and 6 h). Each measurement runs in a fresh child
+// process so its peak RSS is its own.  Run: npx tsx bench/import.ts [--keep] [--runs N]
+
+import { spawnSync } from 'node:child_process'
+import { createReadStream, mkdtempSync, rmSync, statSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import Papa from 'papaparse'
+import { analyzeLoggerStream } from '../server/services/logger-csv'
+import type { TraceConfig } from '../shared/domain/trace'
+import { traceCsvMapping, writeTraceFile } from './make-trace'
+
+const HZ = 100
+const FILES = [
+  { name: '1h', seconds: 3600 },
+  { name: '6h', seconds: 6 * 3600 },
+]
+const MODES = ['crankledger', 'papaparse'] as const
+type Mode = typeof MODES[number]
+
+// Demo engine type with invented over-rev bands (levels as in common practice: log, inspect, teardown).
+export const BENCH_TRACE_CONFIG: TraceConfig = {
+  idleRpm: 2500,
+  bandWidthRpm: 250,
+  maxGapS: 0.5,
+  overRevBands: [
+    { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 100 },
+    { id: 'inspect', label: 'Inspect valve train', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
+    { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 100 },
+  ],
+  lowOilPressure: { belowBar: 2.5, aboveRpm: 4000, minDurationS: 0.2 },
+  trackLengthKm: null,
+  laps: null,
+}
+
+interface Measurement { mode: Mode; seconds: number; rows: number; bytes: number; maxRssMB: number }
+
+async function child(mode: Mode, file: string): Promise<void> {
+  const bytes = statSync(file).size
+  const start = process.hrtime.bigint()
+  let rows = 0
+  if (mode === 'crankledger') {
+    const r = await analyzeLoggerStream(createReadStream(file), traceCsvMapping(), BENCH_TRACE_CONFIG)
+    rows = r.rows
+  } else {
+    // papaparse tuned as in the stack notes: no header mode, no typing, chunked, nothing kept
+    await new Promise<void>((resolve, reject) => {
+      Papa.parse(createReadStream(file, { encoding: 'utf8' }) as unknown as File, {
+        header: false,
+        delimiter: ',',
+        newline: '\n',
+        chunk: (res: Papa.ParseResult<string[]>) => { rows += res.data.length },
+        complete: () => resolve(),
+        error: (e: Error) => reject(e),
+      })
+    })
+    rows -= 1 // header
+  }
+  const seconds = Number(process.hrtime.bigint() - start) / 1e9
+  const maxRssMB = process.resourceUsage().maxRSS / 1024
+  const m: Measurement = { mode, seconds, rows, bytes, maxRssMB }
+  process.stdout.write(JSON.stringify(m) + '\n')
+}
+
+function measure(mode: Mode, file: string): Measurement {
+  const script = fileURLToPath(import.meta.url)
+  const r = spawnSync(process.execPath, [...process.execArgv, script, '--child', mode, file], { encoding: 'utf8' })
+  if (r.status !== 0) throw new Error(`child ${mode} failed: ${r.stderr}`)
+  const line = r.stdout.trim().split('\n').pop()!
+  return JSON.parse(line) as Measurement
+}
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b)
+  return s[Math.floor(s.length / 2)]!
+}
+
+async function main(): Promise<void> {
+  const args = process.argv.slice(2)
+  if (args[0] === '--child') return child(args[1] as Mode, args[2]!)
+  const runsAt = args.indexOf('--runs')
+  const runs = runsAt >= 0 ? Number(args[runsAt + 1]) : 3
+  const dir = mkdtempSync(join(tmpdir(), 'crankledger-bench-'))
+  try {
+    const results: Record<string, Record<Mode, Measurement>> = {}
+    for (const f of FILES) {
+      const path = join(dir, `trace-${f.name}.csv`)
+      const t0 = Date.now()
+      await writeTraceFile(path, { hz: HZ, seconds: f.seconds })
+      const size = statSync(path).size
+      console.log(`${f.name}: ${(size / 1e6).toFixed(1)} MB, ${f.seconds * HZ} rows (generated in ${((Date.now() - t0) / 1000).toFixed(1)} s)`)
+      results[f.name] = {} as Record<Mode, Measurement>
+      for (const mode of MODES) {
+        const ms: Measurement[] = []
+        // alternate order is not needed: each run is its own process
+        for (let i = 0; i < runs; i++) ms.push(measure(mode, path))
+        const best: Measurement = {
+          mode,
+          seconds: median(ms.map((m) => m.seconds)),
+          rows: ms[0]!.rows,
+          bytes: ms[0]!.bytes,
+          maxRssMB: Math.max(...ms.map((m) => m.maxRssMB)),
+        }
+        results[f.name]![mode] = best
+        console.log(
+          `  ${mode.padEnd(12)} ${(best.bytes / 1e6 / best.seconds).toFixed(1).padStart(6)} MB/s  ` +
+            `${(best.rows / best.seconds / 1e6).toFixed(2)} M rows/s  peak RSS ${best.maxRssMB.toFixed(0)} MB  ` +
+            `(median of ${runs}: ${ms.map((m) => m.seconds.toFixed(2)).join(', ')} s)`,
+        )
+      }
+      const r = results[f.name]!
+      console.log(`  ratio crankledger / papaparse alone: ${(r.papaparse.seconds / r.crankledger.seconds).toFixed(2)} (target >= 0.8)`)
+    }
+    const rss1 = results['1h']!.crankledger.maxRssMB
+    const rss6 = results['6h']!.crankledger.maxRssMB
+    console.log(`peak RSS 6h / 1h (crankledger): ${(rss6 / rss1).toFixed(2)} (target <= 1.2)`)
+  } finally {
+    if (!args.includes('--keep')) rmSync(dir, { recursive: true, force: true })
+    else console.log(`files kept in ${dir}`)
+  }
+}
+
+// Only when run as a script: the config above is importable.
+if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) await main()
