@@ -31,12 +31,8 @@ export default defineNuxtConfig({
     alertSchedule: '*/15 * * * *',
     alertsEnabled: true,
     storageDir: '.data/files',
+    loggerMaxBytes: 200 * 1024 * 1024,
     session: { maxAge: 60 * 60 * 12, cookie: { sameSite: 'lax' } },
-  },
-  nitro: {
-    storage: {
-      files: { driver: 'fs', base: '.data/files' },
-    },
   },
   typescript: { strict: true },
 })

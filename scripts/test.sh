@@ -9,6 +9,9 @@ export NUXT_SMTP_PORT="${NUXT_SMTP_PORT:-1027}"
 export CL_MAILDEV_WEB="${CL_MAILDEV_WEB:-1082}"
 export NUXT_PUBLIC_URL="http://127.0.0.1:$CL_TEST_PORT"
 export NUXT_SESSION_PASSWORD="test-session-password-0123456789abcdef"
+export NUXT_STORAGE_DIR="$root/.data-test/files"
+# A small upload cap so the size-limit test need not send 200 MiB.
+export NUXT_LOGGER_MAX_BYTES=4000000
 
 bash db/mariadb.sh ensure-installed
 ensure_node_modules
@@ -24,6 +27,7 @@ trap cleanup INT TERM EXIT
 bash db/mariadb.sh start test
 export NUXT_DATABASE_URL="$(bash db/mariadb.sh url test)"
 npx tsx db/cli.ts reset
+rm -rf "$NUXT_STORAGE_DIR"
 
 rm -rf "$root/.data-test/maildev"
 start_maildev "$NUXT_SMTP_PORT" "$CL_MAILDEV_WEB" "$root/.data-test/maildev"

@@ -1,7 +1,7 @@
 import { FLEET_READERS } from '#shared/roles'
 import { addSession, emptyUsage, evaluatePartLife } from '#shared/domain/life'
-import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toSessionDto } from '../../services/fleet-data'
-import { sessionById } from '../../services/sessions'
+import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toSessionDto } from '../../../services/fleet-data'
+import { sessionById } from '../../../services/sessions'
 
 // A session with what it cost each part that was fitted when it ran.
 export default defineEventHandler(async (event) => {

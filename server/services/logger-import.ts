@@ -1,0 +1,208 @@
+// A session from a logger file: one streaming pass (analysis, SHA-256 and a gzip copy of the raw
+// file side by side), then one transaction; the raw file is kept for re-processing and is never
+// left behind when the import fails.
+import { createGzip, gunzipSync } from 'node:zlib'
+import { Readable, Transform } from 'node:stream'
+import type { Knex } from 'knex'
+import type { LoggerMapping } from '#shared/domain/logger-mapping'
+import type { TraceConfig } from '#shared/domain/trace'
+import type { EngineTypeDto } from '#shared/types/fleet'
+import type { Actor } from '../utils/guard'
+import { audit } from '../utils/audit'
+import { badRequest, conflict, notFound } from '../utils/errors'
+import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
+import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
+import { checkSession, insertSession, sessionById } from './sessions'
+import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
+import { engineRowFor } from './fleet-scope'
+
+
+export interface ImportMeta {
+  engineId: number
+  eventId: number | null
+  kind: 'practice' | 'qualifying' | 'race' | 'test' | 'bench'
+  startedAt: string
+  laps: number | null
+  fileName: string
+  mapping: LoggerMapping
+}
+
+export function traceConfigFor(t: EngineTypeDto, trackLengthKm: number | null, laps: number | null): TraceConfig {
+  return {
+    idleRpm: t.idleRpm,
+    bandWidthRpm: t.bandWidthRpm,
+    maxGapS: t.maxGapS,
+    overRevBands: t.overRevBands,
+    lowOilPressure: t.lowOilPressure,
+    trackLengthKm,
+    laps,
+  }
+}
+
+/** Analyses the stream and keeps a gzip copy of the raw bytes (a fraction of the file's size). */
+async function analyzeAndCompress(input: Readable, mapping: LoggerMapping, cfg: TraceConfig, maxBytes: number) {
+  const gzip = createGzip({ level: 1 })
+  const chunks: Buffer[] = []
+  gzip.on('data', (c: Buffer) => chunks.push(c))
+  const gzipDone = new Promise<void>((resolve, reject) => {
+    gzip.on('end', resolve)
+    gzip.on('error', reject)
+  })
+  // Every chunk goes to the compressor and on to the analyser; backpressure from either holds the input.
+  const tee = new Transform({
+    transform(chunk: Buffer, _enc, done) {
+      if (gzip.write(chunk)) done(null, chunk)
+      else gzip.once('drain', () => done(null, chunk))
+    },
+    flush(done) {
+      gzip.end()
+      done()
+    },
+  })
+  input.on('error', (e) => tee.destroy(e))
+  input.pipe(tee)
+  try {
+    const result = await analyzeLoggerStream(tee, mapping, cfg, { maxBytes })
+    await gzipDone
+    return { result, compressed: Buffer.concat(chunks) }
+  } catch (error) {
+    // Drain what the client still sends so that it receives the answer.
+    input.unpipe(tee)
+    input.resume()
+    gzip.destroy()
+    throw error
+  }
+}
+
+function importErrorToHttp(error: unknown): never {
+  if (error instanceof LoggerImportError) {
+    throw createError({ statusCode: error.status, statusMessage: error.status === 413 ? 'Payload Too Large' : 'Bad Request', message: error.message, data: { code: error.code, row: error.row, column: error.column } })
+  }
+  throw error
+}
+
+function sessionFields(r: LoggerImportResult) {
+  const s = r.summary
+  return {
+    runningSeconds: s.runningSeconds,
+    distanceKm: s.distanceKm,
+    histogram: s.histogram,
+    overRevs: s.overRevs,
+    extras: {
+      lowOilPressure: s.lowOilPressure,
+      maxRpm: Math.round(s.maxRpm),
+      maxOilTempC: s.maxOilTempC,
+      maxWaterTempC: s.maxWaterTempC,
+      maxSpeedKmh: s.maxSpeedKmh,
+      minOilPressureBar: s.minOilPressureBar,
+    },
+    details: {
+      rows: r.rows,
+      skippedRows: r.skippedRows,
+      warnings: r.warnings,
+      delimiter: r.delimiter,
+      header: r.header,
+      distanceSource: s.distanceSource,
+      gaps: s.gaps.slice(0, 100),
+      gapCount: (s as any).gapCount ?? s.gaps.length,
+      durationS: s.durationS,
+      overview: s.overview,
+    },
+  }
+}
+
+export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: Readable, maxBytes: number) {
+  // Check what can be checked before reading the file: engine, event, role scope.
+  const engine = await engineRowFor(db, actor, meta.engineId)
+  const [type] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
+  let trackLengthKm: number | null = null
+  if (meta.eventId !== null) {
+    const ev = await db('events').where('id', meta.eventId).first()
+    if (!ev || ev.supplier_id !== engine.supplier_id) notFound('Event')
+    trackLengthKm = Number(ev.track_length_km)
+  }
+  const cfg = traceConfigFor(type!, trackLengthKm, meta.laps)
+
+  let analysed: Awaited<ReturnType<typeof analyzeAndCompress>>
+  try {
+    analysed = await analyzeAndCompress(body, meta.mapping, cfg, maxBytes)
+  } catch (error) {
+    importErrorToHttp(error)
+  }
+  const { result, compressed } = analysed
+  const f = sessionFields(result)
+  const fileKey = newFileKey('logger', 'csv.gz')
+  let stored = false
+  try {
+    return await db.transaction(async (trx) => {
+      const existing = await trx('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('s.file_sha256', result.sha256).first('s.id', 's.started_at', 's.kind', 'e.serial')
+      if (existing) {
+        conflict(`This file was already imported as session ${existing.id} (${existing.kind}, ${existing.serial}, ${new Date(existing.started_at).toISOString().slice(0, 16).replace('T', ' ')} UTC)`, { sessionId: existing.id })
+      }
+      const input = { engineId: meta.engineId, eventId: meta.eventId, kind: meta.kind, startedAt: meta.startedAt, runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, histogram: f.histogram, overRevs: f.overRevs }
+      const { engine: locked, type: t } = await checkSession(trx, actor, input, { exactBands: false })
+      await putFile(fileKey, compressed)
+      stored = true
+      const id = await insertSession(trx, actor, input, locked, t, {
+        ...f.extras,
+        source: 'logger',
+        fileKey,
+        fileName: meta.fileName.slice(0, 255),
+        fileSha256: result.sha256,
+        details: { ...f.details, mapping: meta.mapping, laps: meta.laps, bytes: result.bytes },
+      })
+      return { session: toSessionDto(await sessionById(trx, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length }
+    })
+  } catch (error) {
+    if (stored) await removeFile(fileKey).catch(() => {})
+    throw error
+  }
+}
+
+/** Re-reads a stored file with the engine type's current bands and replaces the session's numbers. */
+export async function reprocessSession(db: Knex, actor: Actor, sessionId: number, maxBytes: number) {
+  const row = await sessionById(db, sessionId)
+  if (!row) notFound('Session')
+  await engineRowFor(db, actor, row.engine_id)
+  if (row.source !== 'logger' || !row.file_key) badRequest('Only sessions imported from a logger file can be re-processed')
+  const raw = await getFile(row.file_key)
+  if (!raw) conflict('The stored logger file is missing; the session cannot be re-processed')
+  const details = typeof row.details === 'string' ? JSON.parse(row.details) : row.details
+  const engine = await db('engines').where('id', row.engine_id).first()
+  const [type] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
+  const ev = row.event_id ? await db('events').where('id', row.event_id).first() : null
+  const cfg = traceConfigFor(type!, ev ? Number(ev.track_length_km) : null, details?.laps ?? null)
+  let result: LoggerImportResult
+  try {
+    result = await analyzeLoggerStream(Readable.from([gunzipSync(raw)]), details.mapping, cfg, { maxBytes })
+  } catch (error) {
+    importErrorToHttp(error)
+  }
+  const f = sessionFields(result)
+  return db.transaction(async (trx) => {
+    const before = await trx('sessions').where('id', sessionId).forUpdate().first()
+    await trx('sessions').where('id', sessionId).update({
+      running_seconds: f.runningSeconds,
+      distance_km: f.distanceKm,
+      band_width_rpm: type!.bandWidthRpm,
+      histogram: JSON.stringify(f.histogram),
+      over_revs: JSON.stringify(f.overRevs),
+      low_oil_pressure: JSON.stringify(f.extras.lowOilPressure),
+      max_rpm: f.extras.maxRpm,
+      max_oil_temp_c: f.extras.maxOilTempC,
+      max_water_temp_c: f.extras.maxWaterTempC,
+      max_speed_kmh: f.extras.maxSpeedKmh,
+      min_oil_pressure_bar: f.extras.minOilPressureBar,
+      details: JSON.stringify({ ...details, ...f.details }),
+    })
+    await audit(trx, actor, {
+      entity: 'session',
+      entityId: sessionId,
+      action: 'reprocess',
+      before: { runningSeconds: Number(before.running_seconds), distanceKm: Number(before.distance_km), bandWidthRpm: before.band_width_rpm, histogram: before.histogram, overRevs: before.over_revs },
+      after: { runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, bandWidthRpm: type!.bandWidthRpm, histogram: f.histogram, overRevs: f.overRevs },
+    })
+    await bumpLifeRevision(trx)
+    return toSessionDto(await sessionById(trx, sessionId))
+  })
+}

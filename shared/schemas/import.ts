@@ -1,0 +1,30 @@
+import { z } from 'zod'
+import { LoggerMappingSchema } from '../domain/logger-mapping'
+import { SESSION_KINDS } from './fleet'
+
+// Metadata of a logger upload travels in the query string; the body is the raw file.
+export const ImportQuerySchema = z.object({
+  engineId: z.coerce.number().int().positive(),
+  eventId: z.union([z.literal('').transform(() => null), z.coerce.number().int().positive()]).nullable().default(null),
+  kind: z.enum(SESSION_KINDS),
+  startedAt: z.iso.datetime({ offset: true, error: 'must be a date-time such as 2026-11-28T14:00:00Z' }),
+  laps: z.union([z.literal('').transform(() => null), z.coerce.number().int().min(0).max(2000)]).nullable().default(null),
+  fileName: z.string().trim().min(1).max(255).default('logger.csv'),
+  mapping: z
+    .string()
+    .transform((s, ctx) => {
+      try {
+        return JSON.parse(s)
+      } catch {
+        ctx.addIssue({ code: 'custom', message: 'must be JSON' })
+        return z.NEVER
+      }
+    })
+    .pipe(LoggerMappingSchema),
+})
+
+export const LoggerProfileSchema = z.object({
+  name: z.string().trim().min(1).max(80),
+  header: z.array(z.string().max(200)).min(2).max(400),
+  mapping: LoggerMappingSchema,
+})
