@@ -41,5 +41,9 @@ export default defineEventHandler(async (event) => {
       governing: life.governing,
     }
   })
-  return { session: toSessionDto(row), cost, engineType: { code: type!.code, revLimitRpm: type!.revLimitRpm, overRevBands: type!.overRevBands, bandWidthRpm: type!.bandWidthRpm } }
+  const details = json<Record<string, any> | null>(row.details, null)
+  return {
+    session: toSessionDto(row),
+    details: details && { overview: details.overview ?? [], warnings: details.warnings ?? [], skippedRows: details.skippedRows ?? 0, rows: details.rows ?? null, gaps: details.gaps ?? [], gapCount: details.gapCount ?? 0, distanceSource: details.distanceSource ?? null },
+    cost, engineType: { code: type!.code, revLimitRpm: type!.revLimitRpm, overRevBands: type!.overRevBands, bandWidthRpm: type!.bandWidthRpm } }
 })

@@ -1,0 +1,49 @@
+import { mkdtempSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser } from 'playwright-core'
+import { launch, screenshot, signedInPage, TABLET } from './browser'
+import { db } from '../e2e/helpers'
+
+let browser: Browser
+beforeAll(async () => {
+  browser = await launch()
+})
+afterAll(async () => {
+  await browser?.close()
+})
+
+describe('logger import in Chromium', () => {
+  it('previews a file, maps the columns, uploads and shows the result charts', async () => {
+    // Semicolon-delimited with decimal commas and headers no profile knows, so the user maps them.
+    const lines = ['Zeit;Drehzahl;Tempo']
+    for (let i = 0; i < 2000; i++) lines.push(`${(i / 100).toFixed(2).replace('.', ',')};${i < 1000 ? 6250 : 7250};${(150 + i / 100).toFixed(1).replace('.', ',')}`)
+    const dir = mkdtempSync(join(tmpdir(), 'cl-'))
+    const file = join(dir, 'browser-fp2.csv')
+    writeFileSync(file, lines.join('\n'))
+    const engine = await db()('engines').where('serial', 'KT4-2104').first()
+
+    const page = await signedInPage(browser, 'race@redfern.test')
+    await page.goto(`/sessions/import?engine=${engine.id}`)
+    await page.setInputFiles('[data-test=file-input]', file)
+    await expect.poll(() => page.locator('[data-test=detected]').textContent()).toContain('semicolon')
+    expect(await page.locator('[data-test=detected]').textContent()).toContain('comma')
+    await page.selectOption('[data-test=map-time]', 'Zeit')
+    await page.selectOption('[data-test=map-rpm]', 'Drehzahl')
+    await page.selectOption('[data-test=map-speed]', 'Tempo')
+    await screenshot(page, 'import-mapping')
+    await page.click('[data-test=upload]')
+    await page.waitForURL(/\/sessions\/\d+$/)
+    await page.locator('[data-test=histogram-chart] svg').first().waitFor()
+    await page.locator('[data-test=overview-chart] svg').first().waitFor()
+    const summary = await page.locator('[data-test=session-summary]').textContent()
+    expect(summary).toContain('0.3 min') // 19.99 s of running
+    expect(summary).toContain('7250')
+    expect(await page.locator('[data-test=cost-table] tbody tr').count()).toBeGreaterThan(5)
+    await screenshot(page, 'import-result-laptop')
+    await page.setViewportSize(TABLET)
+    await screenshot(page, 'import-result-tablet')
+    await page.close()
+  })
+})

@@ -1,0 +1,45 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser } from 'playwright-core'
+import { launch, screenshot, signedInPage, TABLET } from './browser'
+import { USERS } from '../e2e/helpers'
+
+let browser: Browser
+beforeAll(async () => {
+  browser = await launch()
+})
+afterAll(async () => {
+  await browser?.close()
+})
+
+describe('the shell in Chromium', () => {
+  it('refuses a wrong password on the sign-in page with a readable message', async () => {
+    const page = await browser.newPage({ baseURL: process.env.NUXT_PUBLIC_URL })
+    await page.goto('/login')
+    await page.fill('#email', USERS.managerC)
+    await page.fill('#password', 'not-my-password')
+    await page.click('button[type=submit]')
+    await expect.poll(() => page.locator('[data-test=login-error]').textContent()).toBe('E-mail or password is wrong.')
+    await screenshot(page, 'login-error')
+    await page.close()
+  })
+
+  it('signs in and shows the navigation shell with who is signed in', async () => {
+    const page = await signedInPage(browser, USERS.managerA)
+    await expect.poll(() => page.locator('[data-test=whoami]').textContent()).toContain('Jonas Pike')
+    const nav = await page.locator('nav[aria-label=Main] a').allTextContents()
+    expect(nav.map((n) => n.trim())).toEqual(expect.arrayContaining(['Board', 'Engines', 'Parts', 'Calendar', 'Users']))
+    await screenshot(page, 'shell-laptop')
+    await page.setViewportSize(TABLET)
+    await screenshot(page, 'shell-tablet')
+    await page.click('[data-test=sign-out]')
+    await page.waitForURL(/\/login/)
+    await page.close()
+  })
+
+  it('hides user management from a race engineer', async () => {
+    const page = await signedInPage(browser, USERS.raceA)
+    const nav = await page.locator('nav[aria-label=Main] a').allTextContents()
+    expect(nav.map((n) => n.trim())).not.toContain('Users')
+    await page.close()
+  })
+})
