@@ -1,3 +1,4 @@
+import { gzipSync } from 'node:zlib'
 import { z } from 'zod'
 import { FLEET_READERS } from '#shared/roles'
 import { visibleFleet } from '../services/fleet-scope'
@@ -16,6 +17,11 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const q = readValidQuery(event, Query)
   const { life, engines } = await visibleFleet(useDb(), actor)
+  // The answer for one fleet-life computation, scope and filter is the same text every time: reuse it.
+  const scope = actor.role === 'admin' ? 'all' : `${actor.organisationKind}:${actor.organisationId}`
+  const cacheKey = `${scope}|${JSON.stringify(q)}`
+  const cached = answersFor(life).get(cacheKey)
+  if (cached) return send(event, cached)
   const teams = new Map<number, string>()
   const types = new Map<number, { id: number; code: string; name: string }>()
   for (const e of engines) {
@@ -39,10 +45,40 @@ export default defineEventHandler(async (event) => {
   const sorted = [...rows].sort((a, b) =>
     q.sort === 'serial' ? a.serial.localeCompare(b.serial) : q.sort === 'due' ? dueIndex(a) - dueIndex(b) || b.worst.fraction - a.worst.fraction : b.worst.fraction - a.worst.fraction,
   )
-  return {
-    engines: sorted.map(({ parts: _parts, emptyPositions: _empty, ...summary }) => summary),
+  const answer = JSON.stringify({
+    // The board looks a few events ahead; the planning view asks the engines for more.
+    engines: sorted.map(({ parts: _parts, emptyPositions: _empty, canFinish, ...summary }) => ({ ...summary, canFinish: canFinish.slice(0, BOARD_EVENTS) })),
     teams: [...teams.entries()].map(([id, name]) => ({ id, name })).sort((a, b) => a.name.localeCompare(b.name)),
     engineTypes: [...types.values()].sort((a, b) => a.code.localeCompare(b.code)),
     computedAt: life.computedAt,
-  }
+  })
+  const entry = { text: answer, gzip: gzipSync(answer, { level: 6 }) }
+  rememberAnswer(life, cacheKey, entry)
+  return send(event, entry)
 })
+
+const BOARD_EVENTS = 4
+
+interface Answer { text: string; gzip: Buffer }
+
+function send(event: Parameters<typeof getRequestHeader>[0], a: Answer) {
+  setResponseHeader(event, 'content-type', 'application/json; charset=utf-8')
+  setResponseHeader(event, 'vary', 'accept-encoding')
+  if (/\bgzip\b/.test(getRequestHeader(event, 'accept-encoding') ?? '')) {
+    setResponseHeader(event, 'content-encoding', 'gzip')
+    return a.gzip
+  }
+  return a.text
+}
+
+const answers = new WeakMap<object, Map<string, Answer>>()
+function answersFor(life: object) {
+  let m = answers.get(life)
+  if (!m) answers.set(life, (m = new Map()))
+  return m
+}
+function rememberAnswer(life: object, key: string, text: Answer) {
+  const m = answersFor(life)
+  if (m.size > 200) m.delete(m.keys().next().value!)
+  m.set(key, text)
+}

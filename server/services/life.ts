@@ -4,7 +4,6 @@
 // and the alert task; any write that moves life bumps the revision (see bumpLifeRevision).
 import type { Knex } from 'knex'
 import {
-  addSession,
   emptyUsage,
   evaluatePartLife,
   worstStatus,
@@ -13,6 +12,7 @@ import {
   type PartUsage,
 } from '#shared/domain/life'
 import { forecastEngine, forecastPart, recentDuty, type PlannedEvent } from '#shared/domain/forecast'
+import { createUsageIndex, type UsageIndex } from '#shared/domain/life-index'
 import type { CanFinishDto, ComponentTypeDto, EngineDetailDto, EngineTypeDto, PartLifeDto } from '#shared/types/fleet'
 import { iso } from '../utils/db'
 import {
@@ -38,16 +38,6 @@ export interface FleetLife {
 }
 
 type SessionRow = EngineSession & { bandWidthRpm: number; eventId: number | null }
-
-function usageOver(sessions: SessionRow[], engineType: EngineTypeDto, componentType: ComponentTypeDto, inspectionClearedAt: string | null): PartUsage {
-  const cfg = lifeConfig(engineType)
-  const limits = limitsOf(componentType)
-  let usage = emptyUsage()
-  for (const s of sessions) {
-    usage = addSession(usage, s, s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm }, limits, { inspectionClearedAt })
-  }
-  return usage
-}
 
 export async function computeFleetLife(db: Knex, now: Date, revision?: number): Promise<FleetLife> {
   const rev = revision ?? (await lifeRevision(db))
@@ -84,27 +74,40 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     list.push(i)
   }
 
-  // A part's sessions: those of whichever engine it sat in, inside each installation window.
-  // Sessions per engine are sorted, so each window is a binary-searched slice.
-  const lowerBound = (list: SessionRow[], t: number) => {
-    let lo = 0
-    let hi = list.length
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1
-      if (Date.parse(list[mid]!.at) < t) lo = mid + 1
-      else hi = mid
+  // One prefix-sum index per engine; a part's usage is the sum over its installation windows.
+  const indexes = new Map<number, UsageIndex>()
+  const indexOf = (engineId: number) => {
+    let idx = indexes.get(engineId)
+    if (!idx) {
+      const engine = engineById.get(engineId)
+      idx = createUsageIndex(sessionsByEngine.get(engineId) ?? [], lifeConfig(typeById.get(engine.engine_type_id)!))
+      indexes.set(engineId, idx)
     }
-    return lo
+    return idx
   }
-  const sessionsOfComponent = (componentId: number): SessionRow[] => {
-    const out: SessionRow[] = []
+  const usageOfComponent = (componentId: number, componentType: ComponentTypeDto, inspectionClearedAt: string | null): PartUsage => {
+    const limits = limitsOf(componentType)
+    const total = emptyUsage()
     for (const inst of installsByComponent.get(componentId) ?? []) {
-      const list = sessionsByEngine.get(inst.engineId) ?? []
-      const from = lowerBound(list, Date.parse(inst.from))
-      const to = inst.to ? lowerBound(list, Date.parse(inst.to)) : list.length
-      for (let k = from; k < to; k++) out.push(list[k]!)
+      const idx = indexOf(inst.engineId)
+      const from = idx.lowerBound(Date.parse(inst.from))
+      const to = inst.to ? idx.lowerBound(Date.parse(inst.to)) : idx.sessions.length
+      const u = idx.usage(from, to, limits, { inspectionClearedAt })
+      total.hours += u.hours
+      total.km += u.km
+      total.eqHours += u.eqHours
+      total.sessions += u.sessions
+      total.immediateInspection ||= u.immediateInspection
+      for (const [band, n] of Object.entries(u.overRevCounts)) total.overRevCounts[band] = (total.overRevCounts[band] ?? 0) + n
     }
-    return out
+    return total
+  }
+  const openByEngine = new Map<number, typeof installations>()
+  for (const i of installations) {
+    if (i.to !== null) continue
+    let list = openByEngine.get(i.engineId)
+    if (!list) openByEngine.set(i.engineId, (list = []))
+    list.push(i)
   }
 
   const plansByEngine = new Map<number, any[]>()
@@ -140,14 +143,14 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
       }
     })
 
-    const open = installations.filter((i) => i.engineId === e.id && i.to === null)
+    const open = openByEngine.get(e.id) ?? []
     const partDtos: PartLifeDto[] = []
     const forecastInputs = []
     for (const inst of open) {
       const comp = compById.get(inst.componentId)
       const ct = ctById.get(comp.component_type_id)!
       const limits = limitsOf(ct)
-      const usage = usageOver(sessionsOfComponent(comp.id), et, ct, iso(comp.inspection_cleared_at))
+      const usage = usageOfComponent(comp.id, ct, iso(comp.inspection_cleared_at))
       const life = evaluatePartLife(usage, limits, cfg)
       const fc = forecastPart(usage, limits, cfg, planned, duty, { defaultSecondsPerEvent: meanPerEvent ?? FALLBACK_SECONDS_PER_EVENT })
       forecastInputs.push({ componentId: comp.id, forecast: fc, immediateInspection: life.immediateInspection })
@@ -244,7 +247,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     const lastEngine = history.length ? engineById.get(history[history.length - 1]!.engineId) : null
     const et = lastEngine ? typeById.get(lastEngine.engine_type_id) : engineTypes.find((t) => t.positions.some((p) => p.componentTypeId === ct.id))
     if (!et) continue
-    const usage = usageOver(sessionsOfComponent(comp.id), et, ct, iso(comp.inspection_cleared_at))
+    const usage = usageOfComponent(comp.id, ct, iso(comp.inspection_cleared_at))
     const life = evaluatePartLife(usage, limitsOf(ct), lifeConfig(et))
     parts.set(comp.id, {
       componentId: comp.id,
