@@ -22,8 +22,7 @@ export interface Actor {
 export async function requireActor(event: H3Event, roles: readonly Role[]): Promise<Actor> {
   let actor = event.context.actor as Actor | undefined
   if (!actor) {
-    const session = await getUserSession(event)
-    const sessionUser = session.user as { id?: number; sessionVersion?: number } | undefined
+    const sessionUser = await sessionUserOf(event)
     if (!sessionUser?.id) throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message: 'Sign in first' })
     const row = await useDb()('users as u')
       .join('organisations as o', 'o.id', 'u.organisation_id')
@@ -47,6 +46,25 @@ export async function requireActor(event: H3Event, roles: readonly Role[]): Prom
   }
   if (!roles.includes(actor.role)) forbidden()
   return actor
+}
+
+// Unsealing the cookie is the costliest step of a request; a sealed value never changes, so its
+// content is remembered briefly. The user row is still read every time (deactivation ends access at once).
+const UNSEAL_TTL_MS = 60_000
+const unsealed = new Map<string, { user: { id?: number; sessionVersion?: number } | undefined; until: number }>()
+
+async function sessionUserOf(event: H3Event) {
+  const raw = getCookie(event, 'nuxt-session')
+  const now = Date.now()
+  const hit = raw ? unsealed.get(raw) : undefined
+  if (hit && hit.until > now) return hit.user
+  const session = await getUserSession(event)
+  const user = session.user as { id?: number; sessionVersion?: number } | undefined
+  if (raw && user?.id) {
+    if (unsealed.size > 5000) unsealed.clear()
+    unsealed.set(raw, { user, until: now + UNSEAL_TTL_MS })
+  }
+  return user
 }
 
 /** Columns that say who owns a record: the supplier that owns it and the team that runs it. */
