@@ -244,7 +244,8 @@ export async function runLifeCheck(deps: LifeCheckDeps): Promise<LifeCheckResult
   }
   let runId = 0
   try {
-    ;[runId] = (await db('task_runs').insert({ task: 'life-check', instance: deps.instance, outcome: 'running', started_at: startedAt })).map(Number)
+    const [inserted] = await db('task_runs').insert({ task: 'life-check', instance: deps.instance, outcome: 'running', started_at: startedAt })
+    runId = Number(inserted)
     let findings = 0
     let alertsCreated = 0
     let mailsQueued = 0
