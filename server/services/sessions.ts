@@ -6,6 +6,7 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { engineRowFor } from './fleet-scope'
+import { triggerLifeCheck } from '../utils/alerts'
 
 export interface SessionExtras {
   lowOilPressure?: { startS: number; durationS: number; minBar: number }[]
@@ -97,9 +98,12 @@ export async function sessionById(db: Knex | Knex.Transaction, id: number) {
 }
 
 export async function createManualSession(db: Knex, actor: Actor, input: ManualSessionInput) {
-  return db.transaction(async (trx) => {
+  const session = await db.transaction(async (trx) => {
     const { engine, type } = await checkSession(trx, actor, input, { exactBands: true })
     const id = await insertSession(trx, actor, input, engine, type)
     return toSessionDto(await sessionById(trx, id))
   })
+  // After the commit, so the check sees the new session; in the background, so the request does not wait.
+  triggerLifeCheck()
+  return session
 }
