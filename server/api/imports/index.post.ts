@@ -12,6 +12,7 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(length / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
   }
   const result = await importLoggerFile(useDb(), actor, meta, event.node.req, maxBytes)
+  triggerLifeCheck()
   setResponseStatus(event, 201)
   return result
 })

@@ -4,5 +4,7 @@ import { reprocessSession } from '../../../services/logger-import'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'])
   const { id } = readValidParams(event, IdParams)
-  return reprocessSession(useDb(), actor, id, Number(useRuntimeConfig().loggerMaxBytes))
+  const session = await reprocessSession(useDb(), actor, id, Number(useRuntimeConfig().loggerMaxBytes))
+  triggerLifeCheck()
+  return session
 })
