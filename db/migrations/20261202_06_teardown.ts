@@ -32,7 +32,7 @@ export async function up(knex: Knex) {
     t.enum('verdict', ['in', 'low', 'high']).notNullable()
     t.integer('measured_by').unsigned().notNullable().references('users.id')
     t.timestamp('at', { precision: 3 }).notNullable()
-    t.unique(['teardown_id', 'component_id', 'characteristic_key'])
+    t.unique(['teardown_id', 'component_id', 'characteristic_key'], { indexName: 'td_measurements_one_per_key' })
     t.index(['component_id', 'characteristic_key'])
   })
 
@@ -46,7 +46,7 @@ export async function up(knex: Knex) {
     t.enum('disposition', ['refit', 'replace', 'scrap', 'quarantine', 'send-to-lab']).notNullable()
     t.integer('created_by').unsigned().notNullable().references('users.id')
     t.timestamp('created_at', { precision: 3 }).notNullable()
-    t.unique(['teardown_id', 'component_id'])
+    t.unique(['teardown_id', 'component_id'], { indexName: 'td_findings_one_per_part' })
   })
 
   await knex.schema.createTable('teardown_photos', (t) => {

@@ -5,6 +5,7 @@ import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import { z } from 'zod'
 import { forecastPart, recentDuty, type PlannedEvent } from '#shared/domain/forecast'
+import { addSession, emptyUsage, evaluatePartLife, sessionsForComponent } from '#shared/domain/life'
 import { TEARDOWN_NOTICE, hoursToLimit, judge, plausibleRange, wearTrend, type Characteristic } from '#shared/domain/teardown'
 import type { Disposition } from '#shared/domain/teardown'
 import type { FindingSchema, FindingUpdateSchema, MeasurementSchema, SignOffSchema, SwapSchema, TeardownStartSchema } from '#shared/schemas/teardown'
@@ -15,7 +16,7 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, forbidden, notFound } from '../utils/errors'
 import { iso, num } from '../utils/db'
 import { fitPart, removePart } from './builds'
-import { SESSION_LIFE_COLUMNS, bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession } from './fleet-data'
+import { SESSION_LIFE_COLUMNS, bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toInstallation } from './fleet-data'
 import { engineRowFor } from './fleet-scope'
 import { fleetLife } from './life'
 
@@ -230,25 +231,34 @@ async function nextEventFor(db: Db, engine: any, type: EngineTypeDto, now: Date)
 }
 
 /** Whether a part has life left for the engine's next event, projected with the engine's recent duty. */
-export async function projectForNextEvent(db: Knex, trx: Db, engine: any, componentId: number) {
+export async function projectForNextEvent(trx: Db, engine: any, componentId: number) {
   const now = new Date()
   const [et] = await loadEngineTypes(trx, (qb) => qb.where('id', engine.engine_type_id))
   const comp = await trx('components').where('id', componentId).first()
   const [ct] = await loadComponentTypes(trx, (qb) => qb.where('id', comp.component_type_id))
-  const life = (await fleetLife(db, now)).parts.get(componentId)
   const ev = await nextEventFor(trx, engine, et!, now)
-  if (!life || !ev) return { ok: true, event: ev, fractionAfter: null, message: null }
-  const sessions = (await trx('sessions').where('engine_id', engine.id).select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id'])).map(toEngineSession)
+  if (!ev) return { ok: true, event: null, fractionAfter: null, message: null }
+  const cfg = lifeConfig(et!)
+  const limits = limitsOf(ct!)
+  // The part's own life, straight from its installations and sessions (never a stale cache).
+  const partInst = (await trx('installations').where('component_id', componentId)).map(toInstallation)
+  const engineIds = [...new Set([engine.id, ...partInst.map((i) => i.engineId)])]
+  const allSessions = (await trx('sessions').whereIn('engine_id', engineIds).select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id'])).map(toEngineSession)
+  let usage = emptyUsage()
+  for (const s of sessionsForComponent(componentId, partInst, allSessions) as typeof allSessions) {
+    usage = addSession(usage, s, s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm }, limits, { inspectionClearedAt: iso(comp.inspection_cleared_at) })
+  }
+  const life = evaluatePartLife(usage, limits, cfg)
+  const sessions = allSessions.filter((s) => s.engineId === engine.id)
   const perEvent = new Map<number, number>()
   for (const s of sessions) if (s.eventId !== null) perEvent.set(s.eventId, (perEvent.get(s.eventId) ?? 0) + s.runningSeconds)
   const mean = perEvent.size ? [...perEvent.values()].reduce((a, b) => a + b, 0) / perEvent.size : null
-  const usage = { hours: life.hours, km: life.km, eqHours: life.eqHours, overRevCounts: life.overRevCounts, sessions: 0, immediateInspection: life.immediateInspection }
-  const fc = forecastPart(usage, limitsOf(ct!), lifeConfig(et!), [ev], recentDuty(sessions, 10), { defaultSecondsPerEvent: mean ?? FALLBACK_SECONDS_PER_EVENT })
+  const fc = forecastPart(usage, limits, cfg, [ev], recentDuty(sessions, 10), { defaultSecondsPerEvent: mean ?? FALLBACK_SECONDS_PER_EVENT })
   const after = fc.fractionAfter[0]?.fraction ?? life.fraction
   const ok = !fc.alreadyOver && fc.limitAt === null
   const message = ok
     ? null
-    : `${comp.serial} is projected at ${(after * 100).toFixed(0)} % of its ${life.governing?.label.toLowerCase() ?? 'life'} limit after ${ev.name} (${life.fraction >= 1 ? 'already over' : `${(life.fraction * 100).toFixed(0)} % now`})`
+    : `${comp.serial} is projected at ${(after * 100).toFixed(0)} % of its life limit after ${ev.name}${ev.assigned ? '' : ' (the next event of its series)'}; ${(life.fraction * 100).toFixed(0)} % used now`
   return { ok, event: ev, fractionAfter: after, message }
 }
 
@@ -266,7 +276,7 @@ export async function swapPart(db: Knex, trx: Knex.Transaction, actor: Actor, te
   // fitPart refuses a wrong type (400), a part fitted elsewhere or not serviceable (409); the transaction undoes the removal.
   const fitted = await fitPart(trx, actor, engine.id, { position: input.position, serial: input.serial, at: at.toISOString() })
   const part = await trx('components').where('serial', input.serial).first('id')
-  const projection = await projectForNextEvent(db, trx, engine, part.id)
+  const projection = await projectForNextEvent(trx, engine, part.id)
   if (!projection.ok && !input.overrideReason) {
     conflict(`Invalid input: overrideReason: ${projection.message}. Choose another part, or give overrideReason to fit it anyway`, { lifeWarning: projection.message, needsOverride: true })
   }

@@ -22,10 +22,10 @@ afterAll(async () => {
 async function tabletAs(email: string): Promise<Page> {
   const context = await browser.newContext({ viewport: { width: 820, height: 1180 }, deviceScaleFactor: 1, hasTouch: true })
   const page = await context.newPage()
-  await page.goto(`${BASE}/login`)
+  await page.goto(`${BASE}/login`, { waitUntil: 'networkidle' })
   await page.fill('input[type=email]', email)
   await page.fill('input[type=password]', DEMO_PASSWORD)
-  await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/login')), page.click('button[type=submit]')])
+  await Promise.all([page.waitForURL((u) => !u.pathname.startsWith('/login'), { waitUntil: 'commit' }), page.click('button[type=submit]')])
   return page
 }
 
@@ -37,10 +37,10 @@ describe('teardown on a tablet', () => {
     await db()('components').insert({ supplier_id: ct.supplier_id, component_type_id: ct.id, serial: spare, status: 'serviceable', born_at: new Date(Date.now() - 86_400_000) })
 
     const page = await tabletAs(USERS.supplierMechanic)
-    await page.goto(`${BASE}/teardowns`)
+    await page.goto(`${BASE}/teardowns`, { waitUntil: 'networkidle' })
     await page.selectOption('#td-engine', String(engine.id))
     await page.selectOption('#td-reason', 'scheduled')
-    await Promise.all([page.waitForURL(/\/teardowns\/\d+$/), page.click('[data-test=start-teardown] button[type=submit]')])
+    await Promise.all([page.waitForURL(/\/teardowns\/\d+$/, { waitUntil: 'commit' }), page.click('[data-test=start-teardown] button[type=submit]')])
     const td = Number(new URL(page.url()).pathname.split('/').pop())
 
     // Two readings on conrod 1: one in tolerance, one high; the verdict shows while typing.
@@ -87,7 +87,7 @@ describe('teardown on a tablet', () => {
 
     // A second person signs.
     const signer = await tabletAs(USERS.supplierEngineer)
-    await signer.goto(`${BASE}/teardowns/${td}`)
+    await signer.goto(`${BASE}/teardowns/${td}`, { waitUntil: 'networkidle' })
     await signer.check('[data-test=sign-confirm]')
     await signer.click('[data-test=sign]')
     await expect.poll(() => signer.locator('[data-test=td-state]').innerText()).toBe('signed off')
@@ -96,7 +96,7 @@ describe('teardown on a tablet', () => {
     const row = await db()('engines').where('id', engine.id).first()
     expect([row.status, row.location]).toEqual(['active', 'shelf'])
 
-    await signer.goto(`${BASE}/teardowns/${td}/report`)
+    await signer.goto(`${BASE}/teardowns/${td}/report`, { waitUntil: 'networkidle' })
     await signer.locator('[data-test=report]').waitFor()
     expect(await signer.locator('[data-test=report]').innerText()).toContain('never replace')
     await signer.screenshot({ path: 'screenshots/teardown-report-tablet.png', fullPage: true })

@@ -190,7 +190,7 @@ describe('teardown, swap and sign-off', () => {
     // Not enough life for the 40 h plan: a warning that needs an override reason.
     const warned = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: rodSpare, reason: 'scored big end' })
     expect(warned.status).toBe(409)
-    expect(warned.body.message).toMatch(/overrideReason: .* is projected at \d+ % of its .* limit after Touring round/)
+    expect(warned.body.message).toMatch(/overrideReason: .* is projected at \d+ % of its life limit after Touring round/)
     expect(warned.body.data.needsOverride).toBe(true)
     expect((await db()('installations').where('id', rod1Inst.id).first()).to_at).toBeNull()
     expect((await db()('components').where('id', rod1Inst.component_id).first()).status).toBe('installed')
