@@ -1,0 +1,10 @@
+import { TEARDOWN_WORKERS, TeardownStartSchema } from '#shared/schemas/teardown'
+import { startTeardown } from '../../services/teardowns'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireActor(event, TEARDOWN_WORKERS)
+  const input = await readValidBody(event, TeardownStartSchema)
+  const result = await useDb().transaction((trx) => startTeardown(trx, actor, input))
+  setResponseStatus(event, 201)
+  return result
+})

@@ -1,0 +1,61 @@
+// Schemas shared by the teardown forms and the teardown API.
+import { z } from 'zod'
+import { CHARACTERISTIC_UNITS, DISPOSITIONS, TEARDOWN_CONDITIONS } from '../domain/teardown'
+
+export const TEARDOWN_REASONS = ['life due', 'over-rev inspection', 'oil alarm', 'failure', 'scheduled'] as const
+export type TeardownReason = (typeof TEARDOWN_REASONS)[number]
+export const TEARDOWN_STATES = ['open', 'awaiting sign-off', 'signed off'] as const
+export type TeardownState = (typeof TEARDOWN_STATES)[number]
+
+/** Who may open a teardown and work on it. */
+export const TEARDOWN_WORKERS = ['admin', 'supplier_engineer', 'mechanic'] as const
+/** Who may sign a rebuild off (always a second person). */
+export const TEARDOWN_SIGNERS = ['supplier_engineer', 'mechanic'] as const
+
+/** Photos larger than this are refused while the upload is read. */
+export const PHOTO_MAX_BYTES = 8 * 1024 * 1024
+export const PHOTO_TYPES = ['image/png', 'image/jpeg', 'image/webp'] as const
+
+const text = (max: number) => z.string().trim().max(max, `must be at most ${max} characters`)
+
+export const TeardownStartSchema = z.object({
+  engineId: z.number({ error: 'must be a number' }).int().positive(),
+  reason: z.enum(TEARDOWN_REASONS, { error: `must be one of ${TEARDOWN_REASONS.join(', ')}` }),
+  note: text(2000).nullable().default(null),
+})
+
+export const MeasurementSchema = z.object({
+  componentId: z.number({ error: 'must be a number' }).int().positive(),
+  key: z.string().trim().min(1, 'is required').max(60),
+  value: z.number({ error: 'must be a number' }).finite('must be a finite number'),
+  // Optional: the unit the value was read in, converted to the characteristic's unit (mm <-> um).
+  unit: z.enum(CHARACTERISTIC_UNITS, { error: `must be one of ${CHARACTERISTIC_UNITS.join(', ')}` }).optional(),
+})
+
+export const FindingSchema = z.object({
+  componentId: z.number({ error: 'must be a number' }).int().positive(),
+  condition: z.string().refine((c) => TEARDOWN_CONDITIONS.includes(c), { message: `must be one of ${TEARDOWN_CONDITIONS.join(', ')}` }),
+  note: text(2000).nullable().default(null),
+  disposition: z.enum(DISPOSITIONS, { error: `must be one of ${DISPOSITIONS.join(', ')}` }),
+})
+
+export const FindingUpdateSchema = FindingSchema.omit({ componentId: true })
+  .partial()
+  .refine((v) => Object.keys(v).length > 0, 'nothing to change')
+
+export const SwapSchema = z.object({
+  position: z.string().trim().min(1, 'is required').max(40),
+  serial: z.string().trim().min(1, 'is required').max(60),
+  reason: z.string().trim().min(3, 'say why the part is changed (at least 3 characters)').max(500),
+  overrideReason: z.string().trim().min(3, 'must be at least 3 characters').max(500).optional(),
+})
+
+export const SignOffSchema = z.object({
+  note: text(2000).nullable().default(null),
+  confirm: z.literal(true, { error: 'must be true: the signer confirms the rebuild was inspected' }),
+})
+
+export const TeardownListQuery = z.object({
+  state: z.enum(TEARDOWN_STATES).optional(),
+  engineId: z.coerce.number().int().positive().optional(),
+})
