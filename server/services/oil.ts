@@ -7,8 +7,9 @@
  */
 import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
+import type { ZodError } from 'zod'
 import Papa from 'papaparse'
-import { DEFAULT_OIL_LIMITS, OIL_ELEMENTS, populationLimits, type OilLimits, type OilReason, type OilSampleValues, type OilStatus } from '#shared/domain/oil/limits'
+import { DEFAULT_OIL_LIMITS, populationLimits, type OilLimits, type OilReason, type OilSampleValues, type OilStatus } from '#shared/domain/oil/limits'
 import { oilSampleSchema } from '#shared/domain/oil/schema'
 import { assessEngineHistory, assessLatest } from '#shared/domain/oil/history'
 import { applyMapping, headerSignature, mappingProblems, type OilCsvMapping } from '#shared/domain/oil/lab-csv'
@@ -17,7 +18,7 @@ import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLimitsDto, O
 import type { Actor } from '../utils/guard'
 import { canSee, scopeQuery } from '../utils/guard'
 import { badRequest, conflict, notFound, zodMessage } from '../utils/errors'
-import { iso, json, numOrNull } from '../utils/db'
+import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
 import { engineRowFor } from './fleet-scope'
 import { insertSamples, sampleValues, type SampleRow } from './oil-rows'
@@ -209,7 +210,7 @@ export async function oilSample(db: Db, actor: Actor, id: number): Promise<OilSa
 
 // ----------------------------------------------------------------- entry
 
-function sampleIssues(error: import('zod').ZodError) {
+function sampleIssues(error: ZodError) {
   return zodMessage(error).issues
 }
 
@@ -258,6 +259,7 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
     scopeQuery(engineQb, actor, { supplier: 'supplier_id', team: 'team_id' })
     const engines = new Map((await engineQb).map((e: any) => [String(e.serial).toUpperCase(), e]))
 
+    const columnOf = new Map(Object.entries(input.mapping).filter(([, f]) => f !== 'ignore').map(([c, f]) => [f as string, c]))
     const issues: ImportRowIssue[] = []
     const good: { engineId: number; values: OilSampleValues; lab: string; source: 'csv' }[] = []
     const seenIds = new Map<string, number>()
@@ -279,7 +281,12 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
       const { engineSerial: _serial, ...sample } = record
       const result = oilSampleSchema({ now, builtAt: engine.built_at ? new Date(engine.built_at) : null }).safeParse(sample)
       if (!result.success) {
-        for (const is of sampleIssues(result.error)) issues.push({ row, line, field: is.path, message: is.message })
+        for (const is of sampleIssues(result.error)) {
+          // Name the field as the mapping does (Fe, not elements.Fe) and the lab's column it came from.
+          const field = is.path.replace(/^elements\./, '')
+          const column = columnOf.get(field)
+          issues.push({ row, line, field, message: column ? `${is.message} (column "${column}")` : is.message })
+        }
         continue
       }
       const values = result.data
