@@ -11,7 +11,7 @@ import type { ZodError } from 'zod'
 import Papa from 'papaparse'
 import { DEFAULT_OIL_LIMITS, populationLimits, type OilLimits, type OilReason, type OilSampleValues, type OilStatus } from '#shared/domain/oil/limits'
 import { oilSampleSchema } from '#shared/domain/oil/schema'
-import { assessEngineHistory, assessLatest } from '#shared/domain/oil/history'
+import { assessEngineHistory, assessLatest, leaveOneOutLimits } from '#shared/domain/oil/history'
 import { applyMapping, headerSignature, mappingProblems, type OilCsvMapping } from '#shared/domain/oil/lab-csv'
 import { OilLimitsSchema } from '#shared/schemas/oil'
 import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLimitsDto, OilSampleDto } from '#shared/types/oil'
@@ -122,8 +122,11 @@ export async function oilStatusByEngine(db: Db): Promise<Map<number, OilEngineSt
     byEngine.get(row.engine_id)!.samples.push(values)
   }
   const out = new Map<number, OilEngineStatus>()
+  const popByType = new Map<number, ReturnType<typeof leaveOneOutLimits>>()
   for (const [engineId, { typeId, samples }] of byEngine) {
-    const latest = assessLatest(samples, limits.get(typeId) ?? DEFAULT_OIL_LIMITS, byType.get(typeId)!)
+    const typeLimits = limits.get(typeId) ?? DEFAULT_OIL_LIMITS
+    if (!popByType.has(typeId)) popByType.set(typeId, leaveOneOutLimits(byType.get(typeId)!, typeLimits))
+    const latest = assessLatest(samples, typeLimits, byType.get(typeId)!, popByType.get(typeId)!)
     if (!latest) continue
     out.set(engineId, { status: latest.assessment.status, reasons: latest.assessment.reasons, sampleId: latest.values.sampleId, sampledAt: latest.values.sampledAt })
   }

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import * as ss from 'simple-statistics' // the ESM build has no default export
 import { DEFAULT_OIL_LIMITS, type OilLimits, type OilSampleValues } from '../../shared/domain/oil/limits'
-import { assessEngineHistory, assessLatest, populationLimitsExcluding, sortSamples } from '../../shared/domain/oil/history'
+import { assessEngineHistory, assessLatest, leaveOneOutLimits, populationLimitsExcluding, sortSamples } from '../../shared/domain/oil/history'
 
 function sample(id: string, over: Partial<OilSampleValues> = {}): OilSampleValues {
   return {
@@ -87,5 +87,38 @@ describe('statistical limits leave the assessed sample out', () => {
   it('stays quiet while the population is smaller than minSamples', () => {
     const few = [...population.slice(0, 3), outlier]
     expect(assessLatest([outlier], limits, few)!.assessment.status).toBe('normal')
+  })
+})
+
+describe('leaveOneOutLimits', () => {
+  // Random populations with a large mean beside a small spread (as calcium or zinc), and with gaps.
+  let seed = 7
+  const rand = () => ((seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) / 2 ** 32)
+  const population = Array.from({ length: 60 }, (_, i) => sample(`r${i}`, {
+    elements: { Fe: 5 + rand() * 20, Ca: 2300 + rand() * 5, ...(i % 3 === 0 ? {} : { Cu: rand() * 8 }) },
+  }))
+  population.push(sample('only-one', { elements: { Ni: 2 } }))
+
+  it.each(['sigma', 'percentile'] as const)('agrees with populationLimits on the rest of the population (%s)', (method) => {
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, statistical: { ...DEFAULT_OIL_LIMITS.statistical, method } }
+    const fast = leaveOneOutLimits(population, limits)
+    for (const id of ['r0', 'r1', 'r30', 'only-one', 'not-in-population']) {
+      const expected = populationLimitsExcluding(population, id, limits)
+      const got = fast(id)
+      expect(got.map((p) => [p.element, p.n, p.active])).toEqual(expected.map((p) => [p.element, p.n, p.active]))
+      got.forEach((p, i) => {
+        const e = expected[i]!
+        for (const k of ['mean', 'sd', 'caution', 'critical'] as const) expect(p[k]).toBeCloseTo(e[k], 9)
+      })
+    }
+  })
+
+  it('matches simple-statistics for one element left out', () => {
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, statistical: { ...DEFAULT_OIL_LIMITS.statistical, minSamples: 5 } }
+    const rest = population.filter((s) => s.sampleId !== 'r5').map((s) => s.elements.Ca).filter((x): x is number => x !== undefined)
+    const ca = leaveOneOutLimits(population, limits)('r5').find((p) => p.element === 'Ca')!
+    expect(ca.n).toBe(59)
+    expect(ca.mean).toBeCloseTo(ss.mean(rest), 9)
+    expect(ca.sd).toBeCloseTo(ss.sampleStandardDeviation(rest), 9)
   })
 })
