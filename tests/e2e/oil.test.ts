@@ -115,7 +115,7 @@ describe('lab CSV import', () => {
 
   it.each(BAD)('refuses a file with %s, naming row and field, and stores nothing', async (_what, over, field, pattern) => {
     const good = sid('CSV')
-    const bad = typeof over === 'function' ? await over() : over
+    const bad = (typeof over === 'function' ? await over() : over) ?? {}
     const badId = bad.id ?? sid('CSV')
     const csv = [HEADER, line({ id: good }), line({ ...bad, id: badId })].join('\n')
     const res = await raceB.post('/api/oil/import', { lab: 'Test lab', csv, mapping: MAPPING })

@@ -7,7 +7,7 @@ export default defineEventHandler(async (event) => {
   const report = await oilReport(useDb(), actor, id)
   setResponseHeaders(event, {
     'content-type': 'application/pdf',
-    'content-length': String(report.data.length),
+    'content-length': report.data.length,
     'content-disposition': `attachment; filename="${report.name.replace(/[^\w.\- ]+/g, '_')}"`,
     'x-content-type-options': 'nosniff',
     'cache-control': 'private, no-store',
