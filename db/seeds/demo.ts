@@ -4,6 +4,7 @@ import type { Knex } from 'knex'
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
 import { seedFleet } from './fleet'
+import { seedOil } from './oil'
 
 export const DEMO_PASSWORD = 'ledger-demo-2026'
 
@@ -36,5 +37,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
       await trx('users').insert({ email: u.email, name: u.name, role: u.role, organisation_id: orgId(u.org), password_hash: passwordHash })
     }
     await seedFleet(trx, { supplierId: supplierId!, teams, now })
+    await seedOil(trx, { now })
   })
 }

@@ -1,0 +1,9 @@
+import { SESSION_WRITERS } from '#shared/roles'
+import { OilMappingSaveSchema } from '#shared/schemas/oil'
+import { saveOilMapping } from '../../../services/oil'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireActor(event, SESSION_WRITERS)
+  const input = await readValidBody(event, OilMappingSaveSchema)
+  return saveOilMapping(useDb(), actor, input)
+})

@@ -1,0 +1,97 @@
+/**
+ * Lab CSV layouts: which column of a lab's export holds which sample field.
+ * Shared by the browser preview and the server import, so both read a file
+ * the same way.
+ */
+import { OIL_ELEMENTS } from './limits'
+
+export const OIL_CSV_FIELDS = [
+  'engineSerial', 'sampleId', 'sampledAt', 'engineHours', 'oilHours', 'grade', 'oilChanged',
+  'kv40', 'kv100', 'fuelDilutionPct', 'waterPct', 'p4', 'p6', 'p14',
+  ...OIL_ELEMENTS,
+] as const
+export type OilCsvField = typeof OIL_CSV_FIELDS[number]
+
+/** Column header -> field; a header left out (or mapped to 'ignore') is not read. */
+export type OilCsvMapping = Record<string, OilCsvField | 'ignore'>
+
+export function normaliseHeader(h: string): string {
+  return h.trim().toLowerCase().replace(/[\s_\-./()[\]]+/g, ' ').trim()
+}
+
+/** 32-bit FNV-1a of a string's UTF-8 bytes, as 8 hex digits. */
+export function fnv1a32(text: string): string {
+  let hash = 0x811c9dc5
+  for (const byte of new TextEncoder().encode(text)) {
+    hash ^= byte
+    hash = Math.imul(hash, 0x01000193) >>> 0
+  }
+  return hash.toString(16).padStart(8, '0')
+}
+
+/** Identifies a lab layout by its header row, whatever the case, spacing or column order. */
+export function headerSignature(headers: string[]): string {
+  const names = headers.map(normaliseHeader).filter((h) => h !== '').sort()
+  return `${names.length}-${fnv1a32(names.join('\u0001'))}`
+}
+
+const ALIASES: Record<string, OilCsvField> = {
+  'engine': 'engineSerial', 'engine serial': 'engineSerial', 'serial': 'engineSerial', 'unit': 'engineSerial', 'unit id': 'engineSerial',
+  'sample': 'sampleId', 'sample id': 'sampleId', 'sample no': 'sampleId', 'sample number': 'sampleId', 'lab no': 'sampleId',
+  'date': 'sampledAt', 'sampled': 'sampledAt', 'sampled at': 'sampledAt', 'sample date': 'sampledAt', 'date sampled': 'sampledAt',
+  'engine hours': 'engineHours', 'unit hours': 'engineHours', 'hours': 'engineHours',
+  'oil hours': 'oilHours', 'oil age': 'oilHours', 'hours on oil': 'oilHours',
+  'grade': 'grade', 'oil grade': 'grade', 'viscosity grade': 'grade',
+  'oil changed': 'oilChanged', 'oil change': 'oilChanged',
+  'kv40': 'kv40', 'visc 40': 'kv40', 'visc 40c': 'kv40', 'viscosity 40': 'kv40', 'viscosity 40c': 'kv40',
+  'kv100': 'kv100', 'visc 100': 'kv100', 'visc 100c': 'kv100', 'viscosity 100': 'kv100', 'viscosity 100c': 'kv100',
+  'fuel': 'fuelDilutionPct', 'fuel dilution': 'fuelDilutionPct', 'fuel %': 'fuelDilutionPct', 'fuel dilution %': 'fuelDilutionPct',
+  'water': 'waterPct', 'water %': 'waterPct',
+  'p4': 'p4', '4 um': 'p4', '>4 um': 'p4', 'p6': 'p6', '6 um': 'p6', '>6 um': 'p6', 'p14': 'p14', '14 um': 'p14', '>14 um': 'p14',
+}
+
+/** A first guess at a mapping from header names; the user confirms it in the preview. */
+export function guessMapping(headers: string[]): OilCsvMapping {
+  const out: OilCsvMapping = {}
+  const taken = new Set<OilCsvField>()
+  for (const h of headers) {
+    const n = normaliseHeader(h)
+    const bare = n.replace(/\s*ppm$/, '')
+    const element = OIL_ELEMENTS.find((e) => e.toLowerCase() === bare)
+    const field: OilCsvField | undefined = element ?? ALIASES[n] ?? ALIASES[bare]
+    if (field && !taken.has(field)) {
+      out[h] = field
+      taken.add(field)
+    } else out[h] = 'ignore'
+  }
+  return out
+}
+
+/** Problems with a mapping against a header row: unknown columns, a field mapped twice, required fields missing. */
+export function mappingProblems(headers: string[], mapping: OilCsvMapping): string[] {
+  const problems: string[] = []
+  const seen = new Map<string, string>()
+  for (const [column, field] of Object.entries(mapping)) {
+    if (field === 'ignore') continue
+    if (!headers.includes(column)) problems.push(`mapping: column "${column}" is not in the file`)
+    if (!(OIL_CSV_FIELDS as readonly string[]).includes(field)) problems.push(`mapping: "${field}" is not a sample field`)
+    const before = seen.get(field)
+    if (before !== undefined) problems.push(`mapping: ${field} is mapped from both "${before}" and "${column}"`)
+    seen.set(field, column)
+  }
+  for (const required of ['engineSerial', 'sampleId', 'sampledAt'] as const) {
+    if (!seen.has(required)) problems.push(`mapping: no column is mapped to ${required}`)
+  }
+  return problems
+}
+
+/** One CSV row (cells in header order) as a flat sample record keyed by field. */
+export function applyMapping(headers: string[], cells: string[], mapping: OilCsvMapping): Partial<Record<OilCsvField, string>> {
+  const out: Partial<Record<OilCsvField, string>> = {}
+  headers.forEach((h, i) => {
+    const field = mapping[h]
+    if (!field || field === 'ignore') return
+    out[field] = (cells[i] ?? '').trim()
+  })
+  return out
+}

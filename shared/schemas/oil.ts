@@ -1,0 +1,55 @@
+// Request bodies of the oil API, shared by the forms and the routes.
+import { z } from 'zod'
+import { OIL_ELEMENTS } from '#shared/domain/oil/limits'
+import { OIL_CSV_FIELDS } from '#shared/domain/oil/lab-csv'
+
+const limitValue = (label: string) => z.number({ error: `${label} must be a number` }).min(0, { error: `${label} cannot be negative` }).max(100_000, { error: `${label} must be at most 100000` }).nullable()
+
+const ElementLimitSchema = z.object({
+  caution: limitValue('caution'),
+  critical: limitValue('critical'),
+  ratePer10hCaution: limitValue('ratePer10hCaution'),
+  ratePer10hCritical: limitValue('ratePer10hCritical'),
+}).refine((l) => l.caution === null || l.critical === null || l.critical >= l.caution, { error: 'critical must not be below caution', path: ['critical'] })
+  .refine((l) => l.ratePer10hCaution === null || l.ratePer10hCritical === null || l.ratePer10hCritical >= l.ratePer10hCaution, { error: 'ratePer10hCritical must not be below ratePer10hCaution', path: ['ratePer10hCritical'] })
+
+const elementsShape = Object.fromEntries(OIL_ELEMENTS.map((e) => [e, ElementLimitSchema.optional()])) as Record<(typeof OIL_ELEMENTS)[number], z.ZodOptional<typeof ElementLimitSchema>>
+
+export const OilLimitsSchema = z.object({
+  elements: z.strictObject(elementsShape, { error: 'elements must be limits per element symbol' }),
+  fuelDilutionCautionPct: z.number().min(0).max(100, { error: 'fuelDilutionCautionPct must be at most 100' }).nullable(),
+  waterCautionPct: z.number().min(0).max(100, { error: 'waterCautionPct must be at most 100' }).nullable(),
+  kv100ChangeCautionPct: z.number().min(0).max(100, { error: 'kv100ChangeCautionPct must be at most 100' }).nullable(),
+  newOilKv100: z.number().positive({ error: 'newOilKv100 must be positive' }).max(1000).nullable().optional(),
+  statistical: z.object({
+    enabled: z.boolean(),
+    minSamples: z.number().int().min(3, { error: 'minSamples must be at least 3' }).max(10_000),
+    method: z.enum(['sigma', 'percentile']),
+    cautionSigma: z.number().positive().max(10),
+    criticalSigma: z.number().positive().max(10),
+    cautionPercentile: z.number().gt(0).lt(100),
+    criticalPercentile: z.number().gt(0).lt(100),
+  }).refine((s) => s.criticalSigma >= s.cautionSigma, { error: 'criticalSigma must not be below cautionSigma', path: ['criticalSigma'] })
+    .refine((s) => s.criticalPercentile >= s.cautionPercentile, { error: 'criticalPercentile must not be below cautionPercentile', path: ['criticalPercentile'] }),
+})
+
+/** Form entry: the engine and lab, then the sample fields checked by oilSampleSchema on the server. */
+export const OilSampleCreateSchema = z.looseObject({
+  engineId: z.coerce.number({ error: 'engineId must be an engine' }).int().positive({ error: 'engineId must be an engine' }),
+  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+})
+
+export const OilCsvMappingSchema = z.record(z.string().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
+
+export const OilImportSchema = z.object({
+  lab: z.string({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
+  csv: z.string({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
+  mapping: OilCsvMappingSchema,
+  saveMapping: z.boolean().optional(),
+})
+
+export const OilMappingSaveSchema = z.object({
+  lab: z.string().trim().min(1, { error: 'lab is required' }).max(120),
+  headers: z.array(z.string().max(200)).min(1, { error: 'headers are required' }).max(200),
+  mapping: OilCsvMappingSchema,
+})

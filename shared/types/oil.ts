@@ -1,0 +1,49 @@
+import type { OilLimits, OilReason, OilSampleValues, OilStatus, PopulationLimit } from '#shared/domain/oil/limits'
+
+export interface OilSampleDto extends OilSampleValues {
+  id: number
+  engineId: number
+  lab: string | null
+  source: 'form' | 'csv' | 'seed'
+  attachment: { name: string; size: number } | null
+  createdAt: string | null
+  status: OilStatus
+  reasons: OilReason[]
+  iso4406: string | null
+  viscosityIndex: number | null
+  gradeCheck: { ok: boolean; min: number; max: number } | null
+  previousSampleId: string | null
+}
+
+export interface OilEngineStatusDto {
+  engineId: number
+  serial: string
+  engineTypeId: number
+  engineTypeCode: string
+  teamName: string | null
+  samples: number
+  latest: { sampleId: string; sampledAt: string; status: OilStatus; reasons: OilReason[] } | null
+}
+
+export interface OilEngineDto {
+  engine: { id: number; serial: string; engineTypeId: number; engineTypeCode: string; teamName: string | null; builtAt: string | null }
+  limits: OilLimits
+  limitsAreDefault: boolean
+  population: PopulationLimit[]
+  samples: OilSampleDto[]
+}
+
+export interface OilLimitsDto {
+  engineTypeId: number
+  engineTypeCode: string
+  engineTypeName: string
+  limits: OilLimits
+  isDefault: boolean
+  population: PopulationLimit[]
+  populationSamples: number
+}
+
+export interface OilImportResult {
+  imported: number
+  sampleIds: string[]
+}

@@ -1,0 +1,276 @@
+import { existsSync, readdirSync } from 'node:fs'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { db, signIn, USERS, type Client } from './helpers'
+
+// KV8-1203 is Tidewater's spare KV8-45 with no oil history in the demo: the tests build their own on it.
+let supplier: Client
+let raceB: Client
+let managerA: Client
+let spare: { id: number; builtAt: Date; typeId: number }
+let kv1202: number
+const created: number[] = []
+
+const stamp = Date.now().toString(36).toUpperCase()
+let seq = 0
+const sid = (tag: string) => `T-${stamp}-${tag}-${++seq}`
+/** A moment after the spare's build and before now. */
+const at = (hoursAfterBuild: number) => new Date(spare.builtAt.getTime() + hoursAfterBuild * 3_600_000).toISOString()
+const samplesWith = (ids: string[]) => db()('oil_samples').whereIn('sample_id', ids)
+const storedReports = () => (existsSync('.data/files/oil') ? readdirSync('.data/files/oil').length : 0)
+
+async function post(client: Client, body: Record<string, unknown>) {
+  const res = await client.post('/api/oil/samples', { engineId: spare.id, lab: 'Test bench lab', ...body })
+  if (res.status === 201) created.push(res.body.id)
+  return res
+}
+
+beforeAll(async () => {
+  supplier = await signIn(USERS.supplierEngineer)
+  raceB = await signIn(USERS.raceB)
+  managerA = await signIn(USERS.managerA)
+  const row = await db()('engines').where('serial', 'KV8-1203').first()
+  spare = { id: row.id, builtAt: new Date(row.built_at), typeId: row.engine_type_id }
+  kv1202 = (await db()('engines').where('serial', 'KV8-1202').first()).id
+  expect(spare.builtAt.getTime()).toBeLessThan(Date.now() - 24 * 3_600_000)
+})
+
+afterAll(async () => {
+  for (const id of created) await raceB.delete(`/api/oil/samples/${id}`)
+  await db()('oil_samples').where('sample_id', 'like', `T-${stamp}-%`).delete()
+})
+
+describe('entry by form', () => {
+  it('stores a sample and answers its derived figures', async () => {
+    const id = sid('FORM')
+    const res = await post(raceB, {
+      sampleId: id, sampledAt: at(2), engineHours: 3, oilHours: 3, grade: '5W-40',
+      elements: { Fe: 9, Cu: 4 }, kv40: 90, kv100: 14.0, fuelDilutionPct: 1.2, waterPct: 0.02,
+      p4: 3000, p6: 900, p14: 80,
+    })
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    // ISO 4406 table: 3000 -> 19, 900 -> 17, 80 -> 13 (80 is the upper bound of 13, inclusive).
+    expect(res.body.iso4406).toBe('19/17/13')
+    // Hand case of the D2270 check values: KV40 90, KV100 14.0 gives VI 160.
+    expect(res.body.viscosityIndex).toBe(160)
+    // SAE J300: SAE 40 spans 12.5 up to below 16.3 mm²/s.
+    expect(res.body.gradeCheck).toEqual({ ok: true, min: 12.5, max: 16.3 })
+    expect(res.body.status).toBe('normal')
+    const row = await samplesWith([id]).first()
+    expect(row.engine_id).toBe(spare.id)
+    expect(typeof row.elements === 'string' ? JSON.parse(row.elements) : row.elements).toEqual({ Fe: 9, Cu: 4 })
+  })
+
+  it('refuses kv100 not below kv40, a future date and a duplicate sample id, naming the field', async () => {
+    const id = sid('BAD')
+    const thin = await post(raceB, { sampleId: id, sampledAt: at(3), kv40: 14, kv100: 14 })
+    expect(thin.status).toBe(400)
+    expect(thin.body.message).toContain('kv100')
+    const future = await post(raceB, { sampleId: id, sampledAt: new Date(Date.now() + 86_400_000).toISOString() })
+    expect(future.status).toBe(400)
+    expect(future.body.message).toContain('sampledAt')
+    expect(await samplesWith([id])).toHaveLength(0)
+    const seeded = await db()('oil_samples').where('engine_id', kv1202).first()
+    const dup = await post(raceB, { sampleId: seeded.sample_id, sampledAt: at(3) })
+    expect(dup.status).toBe(409)
+    expect(dup.body.message).toContain('sampleId')
+  })
+})
+
+describe('lab CSV import', () => {
+  const HEADER = 'Unit ID,Sample No,Date Sampled,Unit Hours,Oil Hours,Fe ppm,Cu ppm,Visc 40C,Visc 100C,Remarks'
+  const MAPPING = {
+    'Unit ID': 'engineSerial', 'Sample No': 'sampleId', 'Date Sampled': 'sampledAt', 'Unit Hours': 'engineHours', 'Oil Hours': 'oilHours',
+    'Fe ppm': 'Fe', 'Cu ppm': 'Cu', 'Visc 40C': 'kv40', 'Visc 100C': 'kv100', 'Remarks': 'ignore',
+  }
+  const line = (over: Partial<Record<'serial' | 'id' | 'date' | 'fe' | 'kv40' | 'kv100', string>> = {}) =>
+    [over.serial ?? 'KV8-1203', over.id ?? sid('CSV'), over.date ?? at(4), '5', '5', over.fe ?? '11', '4', over.kv40 ?? '88', over.kv100 ?? '14.1', '"ok, no remark"'].join(',')
+
+  it('imports every row of a good file and keeps the mapping for the lab', async () => {
+    const a = sid('CSV')
+    const b = sid('CSV')
+    const csv = [HEADER, line({ id: a }), line({ id: b, date: at(5) })].join('\n')
+    const res = await raceB.post('/api/oil/import', { lab: `Test lab ${stamp}`, csv, mapping: MAPPING, saveMapping: true })
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    expect(res.body).toEqual({ imported: 2, sampleIds: [a, b] })
+    const rows = await samplesWith([a, b])
+    expect(rows).toHaveLength(2)
+    created.push(...rows.map((r: any) => r.id))
+    expect(rows.every((r: any) => r.source === 'csv' && r.lab === `Test lab ${stamp}` && Number(r.kv100) === 14.1)).toBe(true)
+    const maps = await raceB.get('/api/oil/mappings')
+    expect(maps.body.find((m: any) => m.lab === `Test lab ${stamp}`)?.mapping).toEqual(MAPPING)
+    // Another team does not see Tidewater's lab layouts.
+    expect((await managerA.get('/api/oil/mappings')).body.find((m: any) => m.lab === `Test lab ${stamp}`)).toBeUndefined()
+  })
+
+  const BAD: [string, Parameters<typeof line>[0] | (() => Promise<Parameters<typeof line>[0]>), string, RegExp][] = [
+    ['a negative ppm', { fe: '-3' }, 'Fe', /cannot be negative/],
+    ['an absurd ppm', { fe: '250000' }, 'Fe', /at most 100000 ppm/],
+    ['kv100 not below kv40', { kv40: '14', kv100: '14.1' }, 'kv100', /must be lower than kv40/],
+    ['a sample dated after today', { date: new Date(Date.now() + 2 * 86_400_000).toISOString().slice(0, 10) }, 'sampledAt', /cannot be in the future/],
+    ['a sample before the engine was built', { date: '2020-01-01' }, 'sampledAt', /before the engine was built/],
+    ['an unknown engine serial', { serial: 'KV8-9999' }, 'engineSerial', /unknown engine serial KV8-9999/],
+    ['another team\'s engine serial', { serial: 'KV8-1101' }, 'engineSerial', /unknown engine serial KV8-1101/],
+    ['a sample id already recorded', async () => ({ id: (await db()('oil_samples').where('engine_id', kv1202).first()).sample_id }), 'sampleId', /already recorded/],
+  ]
+
+  it.each(BAD)('refuses a file with %s, naming row and field, and stores nothing', async (_what, over, field, pattern) => {
+    const good = sid('CSV')
+    const bad = (typeof over === 'function' ? await over() : over) ?? {}
+    const badId = bad.id ?? sid('CSV')
+    const csv = [HEADER, line({ id: good }), line({ ...bad, id: badId })].join('\n')
+    const res = await raceB.post('/api/oil/import', { lab: 'Test lab', csv, mapping: MAPPING })
+    expect(res.status).toBe(400)
+    expect(res.body.message).toContain(`row 2 (line 3), ${field}:`)
+    expect(res.body.message).toMatch(pattern)
+    expect(JSON.stringify(res.body)).not.toMatch(/at .*\.(mjs|js|ts):\d+/)
+    expect(await samplesWith([good])).toHaveLength(0)
+    if (!bad.id) expect(await samplesWith([badId])).toHaveLength(0)
+  })
+
+  it('refuses a sample id given twice in one file, naming the second row', async () => {
+    const id = sid('CSV')
+    const csv = [HEADER, line({ id }), line({ id, date: at(6) })].join('\n')
+    const res = await raceB.post('/api/oil/import', { lab: 'Test lab', csv, mapping: MAPPING })
+    expect(res.status).toBe(400)
+    expect(res.body.message).toContain('row 2 (line 3), sampleId: sample')
+    expect(await samplesWith([id])).toHaveLength(0)
+  })
+
+  it('refuses a mapping without the required fields', async () => {
+    const res = await raceB.post('/api/oil/import', { lab: 'Test lab', csv: [HEADER, line()].join('\n'), mapping: { 'Fe ppm': 'Fe' } })
+    expect(res.status).toBe(400)
+    expect(res.body.message).toContain('no column is mapped to engineSerial')
+  })
+})
+
+describe('a constructed history: rate and statistical limits', () => {
+  it('keeps a slow rise normal, flags a jump by rate and an outlier by the fleet statistics', async () => {
+    const before = await raceB.get(`/api/oil/limits/${spare.typeId}`)
+    expect(before.status).toBe(200)
+    const stats = before.body.limits.statistical
+    for (const p of before.body.population) expect(p.active).toBe(stats.enabled && p.n >= stats.minSamples)
+    const fe = before.body.population.find((p: any) => p.element === 'Fe')
+    expect(fe.active).toBe(true)
+    const feMean = Math.round(fe.mean)
+    const cuMean = Math.round(before.body.population.find((p: any) => p.element === 'Cu').mean)
+
+    // 10 oil hours apart, iron up 2 ppm: 2 ppm per 10 h, far below the caution rate of 20.
+    const s1 = await post(raceB, { sampleId: sid('H1'), sampledAt: at(10), engineHours: 10, oilHours: 10, elements: { Fe: feMean, Cu: cuMean } })
+    const s2 = await post(raceB, { sampleId: sid('H2'), sampledAt: at(11), engineHours: 20, oilHours: 20, elements: { Fe: feMean + 2, Cu: cuMean } })
+    expect(s1.status).toBe(201)
+    expect(s2.status).toBe(201)
+    let history = (await raceB.get(`/api/oil/engines/${spare.id}`)).body.samples
+    const h2 = history.find((s: any) => s.sampleId === s2.body.sampleId)
+    expect(h2.previousSampleId).toBe(s1.body.sampleId)
+    expect(h2.status).toBe('normal')
+    expect(h2.reasons).toEqual([])
+
+    // 5 oil hours later iron is up 15 ppm: 30 ppm per 10 h, above the caution rate of 20.
+    const s3 = await post(raceB, { sampleId: sid('H3'), sampledAt: at(12), engineHours: 25, oilHours: 25, elements: { Fe: feMean + 17, Cu: cuMean } })
+    expect(s3.status).toBe(201)
+    const rate = s3.body.reasons.find((r: any) => r.kind === 'rate')
+    expect(rate).toMatchObject({ element: 'Fe', level: 'caution', value: 30, limit: 20 })
+    expect(rate.message).toBe('Fe rising 30 ppm per 10 h, above the caution rate of 20 ppm per 10 h')
+
+    // A fresh fill with copper far above the fleet's spread, yet below the absolute caution of 20 ppm.
+    const pop = (await raceB.get(`/api/oil/limits/${spare.typeId}`)).body.population.find((p: any) => p.element === 'Cu')
+    const cu = Math.ceil(pop.critical) + 1
+    expect(cu).toBeLessThan(20)
+    const s4 = await post(raceB, { sampleId: sid('H4'), sampledAt: at(13), engineHours: 27, oilHours: 2, oilChanged: true, elements: { Fe: feMean, Cu: cu } })
+    expect(s4.status).toBe(201)
+    expect(s4.body.status).toBe('critical')
+    expect(s4.body.reasons.filter((r: any) => r.kind !== 'statistical')).toEqual([])
+    const stat = s4.body.reasons.find((r: any) => r.element === 'Cu')
+    expect(stat).toMatchObject({ kind: 'statistical', level: 'critical', value: cu })
+    expect(stat.limit).toBeCloseTo(pop.critical, 6)
+    expect(stat.message).toContain(`Cu ${cu} ppm above the statistical critical limit`)
+    expect(stat.message).toContain(`of ${pop.n} samples`)
+
+    // The engine's latest status is the outlier's; the list and the history agree.
+    history = (await raceB.get(`/api/oil/engines/${spare.id}`)).body.samples
+    expect(history[history.length - 1].sampleId).toBe(s4.body.sampleId)
+    const list = (await raceB.get('/api/oil')).body
+    const row = list.find((e: any) => e.engineId === spare.id)
+    expect(row.latest).toMatchObject({ sampleId: s4.body.sampleId, status: 'critical' })
+  })
+
+  it('shows the demo iron jump of KV8-1202 as a rate finding', async () => {
+    const row = (await supplier.get('/api/oil')).body.find((e: any) => e.serial === 'KV8-1202')
+    expect(['caution', 'critical']).toContain(row.latest.status)
+    expect(row.latest.reasons.some((r: any) => r.kind === 'rate' && r.element === 'Fe')).toBe(true)
+  })
+
+  it('lets only the supplier change the limits, and checks them', async () => {
+    const current = (await supplier.get(`/api/oil/limits/${spare.typeId}`)).body.limits
+    expect((await raceB.put(`/api/oil/limits/${spare.typeId}`, current)).status).toBe(403)
+    const bad = { ...current, elements: { ...current.elements, Fe: { caution: 100, critical: 50, ratePer10hCaution: null, ratePer10hCritical: null } } }
+    const res = await supplier.put(`/api/oil/limits/${spare.typeId}`, bad)
+    expect(res.status).toBe(400)
+    expect(res.body.message).toContain('elements.Fe.critical')
+  })
+})
+
+describe('team scoping', () => {
+  it('shows a team only its own engines\' oil', async () => {
+    const a = (await managerA.get('/api/oil')).body
+    expect(a.length).toBeGreaterThan(0)
+    expect(new Set(a.map((e: any) => e.teamName))).toEqual(new Set(['Marlowe Vane Racing']))
+    expect((await supplier.get('/api/oil')).body).toHaveLength(13)
+  })
+
+  it('answers 404 for another team\'s engine oil, samples and reports', async () => {
+    const sample = await db()('oil_samples').where('engine_id', kv1202).first()
+    for (const path of [`/api/oil/engines/${kv1202}`, `/api/oil/samples/${sample.id}`, `/api/oil/samples/${sample.id}/report`]) {
+      const res = await managerA.get(path)
+      expect(res.status, path).toBe(404)
+      expect(JSON.stringify(res.body)).not.toContain(sample.sample_id)
+    }
+    expect((await managerA.delete(`/api/oil/samples/${sample.id}`)).status).toBe(404)
+    const form = new FormData()
+    form.append('file', new Blob([Buffer.from('%PDF-1.4\n%%EOF\n')], { type: 'application/pdf' }), 'r.pdf')
+    expect((await managerA.request('POST', `/api/oil/samples/${sample.id}/report`, form)).status).toBe(404)
+    expect((await managerA.post('/api/oil/samples', { engineId: kv1202, sampleId: sid('X'), sampledAt: new Date().toISOString() })).status).toBe(404)
+    expect(await db()('oil_samples').where('id', sample.id).first()).toBeTruthy()
+  })
+})
+
+describe('the lab\'s PDF report', () => {
+  const pdf = Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer << /Root 1 0 R >>\n%%EOF\n')
+
+  it('keeps a PDF under a generated key and gives it back', async () => {
+    const s = await post(raceB, { sampleId: sid('PDF'), sampledAt: at(20) })
+    expect(s.status).toBe(201)
+    const filesBefore = storedReports()
+    const form = new FormData()
+    form.append('file', new Blob([pdf], { type: 'application/pdf' }), '../../etc/passwd.pdf')
+    const up = await raceB.request('POST', `/api/oil/samples/${s.body.id}/report`, form)
+    expect(up.status, JSON.stringify(up.body)).toBe(200)
+    expect(up.body.attachment.size).toBe(pdf.length)
+    expect(up.body.attachment.name).not.toContain('/')
+    const row = await db()('oil_samples').where('id', s.body.id).first()
+    expect(row.attachment_key).toMatch(/^oil:[0-9a-f-]{36}\.pdf$/)
+    expect(storedReports()).toBe(filesBefore + 1)
+
+    const res = await fetch(`${raceB.origin}/api/oil/samples/${s.body.id}/report`, { headers: { cookie: raceB.cookie } })
+    expect(res.status).toBe(200)
+    expect(res.headers.get('content-type')).toBe('application/pdf')
+    expect(Buffer.from(await res.arrayBuffer()).equals(pdf)).toBe(true)
+
+    // Deleting the sample takes its report with it.
+    expect((await raceB.delete(`/api/oil/samples/${s.body.id}`)).status).toBe(204)
+    expect(storedReports()).toBe(filesBefore)
+  })
+
+  it('refuses a file that is not a PDF and keeps nothing', async () => {
+    const s = await post(raceB, { sampleId: sid('NOPDF'), sampledAt: at(21) })
+    const filesBefore = storedReports()
+    const form = new FormData()
+    form.append('file', new Blob([Buffer.from('PK\u0003\u0004 pretending to be a report')], { type: 'application/pdf' }), 'report.pdf')
+    const up = await raceB.request('POST', `/api/oil/samples/${s.body.id}/report`, form)
+    expect(up.status).toBe(400)
+    expect(up.body.message).toContain('must be a PDF')
+    expect(storedReports()).toBe(filesBefore)
+    const row = await db()('oil_samples').where('id', s.body.id).first()
+    expect(row.attachment_key).toBeNull()
+  })
+})
