@@ -15,6 +15,7 @@ import { forecastEngine, forecastPart, recentDuty, type PlannedEvent } from '#sh
 import { createUsageIndex, type UsageIndex } from '#shared/domain/life-index'
 import type { CanFinishDto, ComponentTypeDto, EngineDetailDto, EngineTypeDto, PartLifeDto } from '#shared/types/fleet'
 import { iso } from '../utils/db'
+import { oilStatusByEngine } from './oil'
 import {
   SESSION_LIFE_COLUMNS,
   lifeConfig,
@@ -41,7 +42,7 @@ type SessionRow = EngineSession & { bandWidthRpm: number; eventId: number | null
 
 export async function computeFleetLife(db: Knex, now: Date, revision?: number): Promise<FleetLife> {
   const rev = revision ?? (await lifeRevision(db))
-  const [engineTypes, componentTypes, engineRows, installationRows, componentRows, sessionRows, eventRows, planRows, teamRows] = await Promise.all([
+  const [engineTypes, componentTypes, engineRows, installationRows, componentRows, sessionRows, eventRows, planRows, teamRows, oil] = await Promise.all([
     loadEngineTypes(db),
     loadComponentTypes(db),
     db('engines').select('*'),
@@ -51,6 +52,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     db('events').where('ends_at', '>', now).orderBy('starts_at'),
     db('event_plans').select('*'),
     db('organisations').where('kind', 'team').select('id', 'name'),
+    oilStatusByEngine(db),
   ])
   const typeById = new Map(engineTypes.map((t) => [t.id, t]))
   const ctById = new Map(componentTypes.map((c) => [c.id, c]))
@@ -229,7 +231,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
         immediateInspection: partDtos.some((p) => p.immediateInspection),
         events: engineSessions.reduce((t, s) => t + s.overRevs.length, 0),
       },
-      oilStatus: null,
+      oilStatus: oil.get(e.id)?.status ?? null,
       warningAt: efc.warningAt,
       limitAt: efc.limitAt,
       nextEvent: canFinish.find((c) => c.assigned) ?? canFinish[0] ?? null,

@@ -21,6 +21,7 @@ import { badRequest, conflict, notFound, zodMessage } from '../utils/errors'
 import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
 import { engineRowFor } from './fleet-scope'
+import { bumpLifeRevision } from './fleet-data'
 import { insertSamples, sampleValues, type SampleRow } from './oil-rows'
 
 type Db = Knex | Knex.Transaction
@@ -84,6 +85,8 @@ export async function oilLimitsList(db: Db, actor: Actor): Promise<OilLimitsDto[
 
 export async function saveOilLimits(db: Knex, actor: Actor, engineTypeId: number, limits: OilLimits): Promise<OilLimitsDto> {
   await db.transaction(async (trx) => {
+    // Oil status shows on the board, which is cached per life revision.
+    await bumpLifeRevision(trx)
     const type = await trx('engine_types').where('id', engineTypeId).forUpdate().first('id', 'supplier_id')
     if (!type || (actor.role !== 'admin' && type.supplier_id !== actor.organisationId)) notFound('Engine type')
     const before = await trx('oil_limits').where('engine_type_id', engineTypeId).first()
@@ -220,6 +223,8 @@ function sampleIssues(error: ZodError) {
 /** Form entry of one sample. */
 export async function createOilSample(db: Knex, actor: Actor, engineId: number, lab: string | null, input: unknown, now = new Date()): Promise<OilSampleDto> {
   const id = await db.transaction(async (trx) => {
+    // Oil status shows on the board, which is cached per life revision.
+    await bumpLifeRevision(trx)
     const engine = await engineRowFor(trx, actor, engineId, { forUpdate: true })
     const parsed = oilSampleSchema({ now, builtAt: engine.built_at ? new Date(engine.built_at) : null }).safeParse(input)
     if (!parsed.success) {
@@ -258,6 +263,8 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
   if (problems.length) badRequest(problems.join('; '), { issues: problems.map((p) => ({ row: 0, line: 1, field: 'mapping', message: p })) })
 
   return db.transaction(async (trx) => {
+    // Oil status shows on the board, which is cached per life revision.
+    await bumpLifeRevision(trx)
     const engineQb = trx('engines').select('id', 'serial', 'built_at', 'supplier_id', 'team_id')
     scopeQuery(engineQb, actor, { supplier: 'supplier_id', team: 'team_id' })
     const engines = new Map((await engineQb).map((e: any) => [String(e.serial).toUpperCase(), e]))
@@ -323,6 +330,8 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
 
 export async function deleteOilSample(db: Knex, actor: Actor, id: number): Promise<void> {
   const key = await db.transaction(async (trx) => {
+    // Oil status shows on the board, which is cached per life revision.
+    await bumpLifeRevision(trx)
     const row = await sampleRowFor(trx, actor, id, { forUpdate: true })
     await trx('oil_samples').where('id', id).delete()
     await audit(trx, actor, { entity: 'oil_sample', entityId: id, action: 'delete', before: sampleValues(row) })

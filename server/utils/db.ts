@@ -33,3 +33,17 @@ export function iso(v: unknown): string | null {
   if (v === null || v === undefined) return null
   return (v instanceof Date ? v : new Date(String(v))).toISOString()
 }
+
+const DB_DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ER_SERVER_SHUTDOWN', 'PROTOCOL_SEQUENCE_TIMEOUT'])
+
+/** True when an error means the database cannot be reached (as opposed to a bad query). */
+export function isDbUnavailable(error: unknown): boolean {
+  for (let e: any = error, depth = 0; e && depth < 4; e = e.cause, depth++) {
+    if (DB_DOWN_CODES.has(e.code) || e.fatal === true || /Knex: Timeout acquiring a connection/.test(String(e.message))) return true
+  }
+  return false
+}
+
+export function dbUnavailable(): never {
+  throw createError({ statusCode: 503, statusMessage: 'Service Unavailable', message: 'The database cannot be reached at the moment. Nothing was changed; try again in a minute.' })
+}
