@@ -26,7 +26,14 @@ export function numOrNull(v: unknown): number | null {
 }
 export function json<T>(v: unknown, fallback: T): T {
   if (v === null || v === undefined) return fallback
-  if (typeof v === 'string') return JSON.parse(v) as T
+  // mysql2 may hand JSON columns over parsed already; a parsed JSON string stays a string.
+  if (typeof v === 'string') {
+    try {
+      return JSON.parse(v) as T
+    } catch {
+      return v as T
+    }
+  }
   return v as T
 }
 export function iso(v: unknown): string | null {

@@ -22,7 +22,7 @@ describe('logger import in Chromium', () => {
     const dir = mkdtempSync(join(tmpdir(), 'cl-'))
     const file = join(dir, 'browser-fp2.csv')
     writeFileSync(file, lines.join('\n'))
-    const engine = await db()('engines').where('serial', 'KT4-2104').first()
+    const engine = await db()('engines').where('serial', 'KT4-2102').first()
 
     const page = await signedInPage(browser, 'race@redfern.test')
     await page.goto(`/sessions/import?engine=${engine.id}`)

@@ -53,7 +53,7 @@ async function upload(client: Client, body: string | Buffer, params: Record<stri
 
 beforeAll(async () => {
   race = await signIn('race@redfern.test')
-  engineId = (await db()('engines').where('serial', 'KT4-2103').first()).id
+  engineId = (await db()('engines').where('serial', 'KT4-2102').first()).id
   otherTeamEngine = (await db()('engines').where('serial', 'KV8-1101').first()).id
 })
 

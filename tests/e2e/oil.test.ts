@@ -1,4 +1,5 @@
 import { existsSync, readdirSync } from 'node:fs'
+import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { db, signIn, USERS, type Client } from './helpers'
 
@@ -16,7 +17,8 @@ const sid = (tag: string) => `T-${stamp}-${tag}-${++seq}`
 /** A moment after the spare's build and before now. */
 const at = (hoursAfterBuild: number) => new Date(spare.builtAt.getTime() + hoursAfterBuild * 3_600_000).toISOString()
 const samplesWith = (ids: string[]) => db()('oil_samples').whereIn('sample_id', ids)
-const storedReports = () => (existsSync('.data/files/oil') ? readdirSync('.data/files/oil').length : 0)
+const REPORT_DIR = join(process.env.NUXT_STORAGE_DIR ?? '.data/files', 'oil')
+const storedReports = () => (existsSync(REPORT_DIR) ? readdirSync(REPORT_DIR).length : 0)
 
 async function post(client: Client, body: Record<string, unknown>) {
   const res = await client.post('/api/oil/samples', { engineId: spare.id, lab: 'Test bench lab', ...body })

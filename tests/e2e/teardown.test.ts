@@ -37,7 +37,7 @@ function filesIn(dir: string): number {
   }
   return n
 }
-const PHOTO_DIR = join(process.cwd(), '.data/files/teardown/photos')
+const PHOTO_DIR = join(process.env.NUXT_STORAGE_DIR ?? join(process.cwd(), '.data/files'), 'teardown/photos')
 async function installations(engineId: number): Promise<(Installation & { id: number })[]> {
   const rows = await db()('installations').where('engine_id', engineId)
   return rows.map((r) => ({ id: r.id, componentId: r.component_id, engineId: r.engine_id, position: r.position, from: new Date(r.from_at).toISOString(), to: r.to_at ? new Date(r.to_at).toISOString() : null }))

@@ -1,0 +1,44 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser } from 'playwright-core'
+import { launch, screenshot, signedInPage, TABLET, LAPTOP } from './browser'
+import { USERS } from '../e2e/helpers'
+
+let browser: Browser
+beforeAll(async () => {
+  browser = await launch()
+})
+afterAll(async () => {
+  await browser?.close()
+})
+
+describe('fleet life board in Chromium', () => {
+  it('lets a team manager filter the board, keeps the filter in the URL, and opens an engine with its charts', async () => {
+    const page = await signedInPage(browser, USERS.managerA)
+    await page.goto('/')
+    await page.locator('[data-test=board-row]').first().waitFor()
+    const all = await page.locator('[data-test=board-row]').count()
+    expect(all).toBeGreaterThanOrEqual(3) // Marlowe's engines only
+    const rows = await page.locator('[data-test=board-row] a.serial').allTextContents()
+    expect(rows.every((s) => ['KV8-1101', 'KV8-1102', 'KV8-1103', 'KT4-2201'].includes(s.trim()))).toBe(true)
+    await screenshot(page, 'board-laptop')
+    await page.setViewportSize(TABLET)
+    await screenshot(page, 'board-tablet')
+    await page.setViewportSize(LAPTOP)
+
+    await page.selectOption('#b-loc', 'shelf')
+    await page.waitForURL(/location=shelf/)
+    await expect.poll(() => page.locator('[data-test=board-row]').count()).toBe(1)
+    expect((await page.locator('[data-test=board-row] a.serial').textContent())?.trim()).toBe('KV8-1103')
+    // The status is written out, not only coloured.
+    expect(await page.locator('[data-test=board-row]').first().textContent()).toMatch(/Within life|Plan rebuild|Rebuild due|Do not run/)
+
+    await page.click('[data-test=board-row] a.serial')
+    await page.waitForURL(/\/engines\/\d+/)
+    await page.locator('[data-test=build-sheet]').waitFor()
+    await expect.poll(() => page.locator('.apexcharts-canvas').count(), { timeout: 15_000 }).toBeGreaterThanOrEqual(3)
+    await screenshot(page, 'engine-laptop')
+    await page.setViewportSize(TABLET)
+    await screenshot(page, 'engine-tablet')
+    await page.close()
+  })
+})

@@ -1,0 +1,163 @@
+// Walks every API route the app registers — the list is derived from the files under server/api,
+// not kept by hand — as every role and as a member of another team. A new route without the guard,
+// or without a stated expectation below, fails here.
+import { readdirSync, statSync } from 'node:fs'
+import { join, relative } from 'node:path'
+import { beforeAll, describe, expect, it } from 'vitest'
+import { Client, db, signIn, USERS } from './helpers'
+
+type Role = 'admin' | 'supplier_engineer' | 'team_manager' | 'race_engineer' | 'mechanic'
+const ALL: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer', 'mechanic']
+const SUPPLIER: Role[] = ['admin', 'supplier_engineer']
+const WRITERS: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer']
+const TEARDOWN: Role[] = ['admin', 'supplier_engineer', 'mechanic']
+
+interface Route { method: string; path: string; file: string }
+
+function apiRoutes(): Route[] {
+  const root = join(process.cwd(), 'server/api')
+  const out: Route[] = []
+  const walk = (dir: string) => {
+    for (const name of readdirSync(dir)) {
+      const full = join(dir, name)
+      if (statSync(full).isDirectory()) walk(full)
+      else {
+        const m = /^(.*)\.(get|post|put|patch|delete)\.ts$/.exec(relative(root, full))
+        if (!m) throw new Error(`route file without a method suffix: ${full}`)
+        const path = `/api/${m[1]!.replace(/(^|\/)index$/, '')}`.replace(/\/$/, '')
+        out.push({ method: m[2]!.toUpperCase(), path, file: relative(process.cwd(), full) })
+      }
+    }
+  }
+  walk(root)
+  return out
+}
+
+const PUBLIC = new Set(['POST /api/auth/login', 'POST /api/auth/logout', 'GET /api/health'])
+
+/** Which roles may read each GET route (expect 200 on their own organisation's records; everyone else 403). */
+const READ_ROLES: Record<string, Role[]> = {
+  '/api/admin/outbox': ['admin'],
+  '/api/admin/task-runs': ['admin'],
+  '/api/alerts': ALL,
+  '/api/audit': SUPPLIER,
+  '/api/board': ALL,
+  '/api/component-types': ALL,
+  '/api/engine-types': ALL,
+  '/api/engines/[id]': ALL,
+  '/api/engines/[id]/charts': ALL,
+  '/api/engines/[id]/sessions': ALL,
+  '/api/engines': ALL,
+  '/api/events': ALL,
+  '/api/logger-profiles': WRITERS,
+  '/api/me': ALL,
+  '/api/me/alert-prefs': ALL,
+  '/api/oil/engines/[id]': ALL,
+  '/api/oil': ALL,
+  '/api/oil/limits/[id]': ALL,
+  '/api/oil/limits': ALL,
+  '/api/oil/mappings': WRITERS,
+  '/api/oil/samples/[id]': ALL,
+  '/api/organisations': ALL,
+  '/api/parts/[id]': ALL,
+  '/api/parts/[id]/wear': ALL,
+  '/api/parts': ALL,
+  '/api/sessions/[id]': ALL,
+  '/api/teardowns/findings': TEARDOWN,
+  '/api/teardowns': ALL,
+  '/api/users': ['admin', 'team_manager'],
+}
+/** GET routes whose record may not exist in the demo (answer 404 for everyone with the role). */
+const NO_DEMO_RECORD = new Set(['/api/oil/samples/[id]/report', '/api/teardown-photos/[id]', '/api/teardowns/[id]'])
+
+const ROLE_USER: Record<Role, string> = {
+  admin: USERS.admin,
+  supplier_engineer: USERS.supplierEngineer,
+  team_manager: USERS.managerA,
+  race_engineer: USERS.raceA,
+  mechanic: USERS.mechanicA,
+}
+
+let ids: Record<string, number>
+const clients: Partial<Record<Role | 'otherManager' | 'otherRace', Client>> = {}
+
+/** A concrete path with the ids of records that belong to team A (Marlowe Vane Racing). */
+function concrete(path: string): string {
+  return path.replace(/\/([a-z-]+)\/\[(\w+)\]/g, (_m, folder: string, param: string) => `/${folder}/${ids[`${folder}.${param}`] ?? 999_999}`).replace(/\[(\w+)\]/g, (_m, param: string) => String(ids[param] ?? 999_999))
+}
+
+beforeAll(async () => {
+  const engine = await db()('engines').where('serial', 'KV8-1101').first()
+  const inst = await db()('installations').where({ engine_id: engine.id }).whereNull('to_at').orderBy('id').first()
+  const session = await db()('sessions').where('engine_id', engine.id).first()
+  const event = await db()('events').where('series', 'Meridian Endurance GT').where('starts_at', '>', new Date()).orderBy('starts_at').first()
+  const user = await db()('users').where('email', USERS.raceA).first()
+  const sample = await db()('oil_samples').where('engine_id', engine.id).first()
+  ids = {
+    'engines.id': engine.id,
+    'oil/engines.id': engine.id,
+    'plans.engineId': engine.id,
+    'installations.id': inst.id,
+    'parts.id': inst.component_id,
+    'sessions.id': session.id,
+    'events.id': event.id,
+    'users.id': user.id,
+    'component-types.id': 1,
+    'engine-types.id': 1,
+    'limits.id': 1,
+    'samples.id': sample?.id ?? 999_999,
+  }
+  for (const role of ALL) clients[role] = await signIn(ROLE_USER[role])
+  clients.otherManager = await signIn(USERS.managerB)
+  clients.otherRace = await signIn(USERS.raceB)
+})
+
+const routes = apiRoutes()
+
+describe('every API route goes through the guard', () => {
+  it('finds the routes from the files', () => {
+    expect(routes.length).toBeGreaterThan(50)
+  })
+
+  it.each(routes.filter((r) => !PUBLIC.has(`${r.method} ${r.path}`)).map((r) => [`${r.method} ${r.path}`, r] as const))('%s answers 401 without a session', async (_name, r) => {
+    const res = await new Client().request(r.method, concrete(r.path), r.method === 'GET' || r.method === 'DELETE' ? undefined : {})
+    expect(res.status, r.file).toBe(401)
+  })
+
+  it('states who may read every GET route', () => {
+    const unknown = routes.filter((r) => r.method === 'GET' && !PUBLIC.has(`GET ${r.path}`) && !(r.path in READ_ROLES) && !NO_DEMO_RECORD.has(r.path))
+    expect(unknown.map((r) => r.file), 'add the route to READ_ROLES or NO_DEMO_RECORD').toEqual([])
+  })
+})
+
+describe('roles and organisations on every GET route', () => {
+  const gets = routes.filter((r) => r.method === 'GET' && !PUBLIC.has(`GET ${r.path}`))
+  it.each(gets.map((r) => [r.path, r] as const))('%s: allowed roles read their own team\'s record, others get 403, another team gets 404', async (_p, r) => {
+    const url = concrete(r.path)
+    for (const role of ALL) {
+      const res = await clients[role]!.get(url)
+      const expected = NO_DEMO_RECORD.has(r.path) ? [403, 404] : READ_ROLES[r.path]!.includes(role) ? [200] : [403]
+      expect(expected, `${role} ${url} answered ${res.status}: ${JSON.stringify(res.body).slice(0, 200)}`).toContain(res.status)
+    }
+    if (/\/(engines|parts|sessions|installations|users|samples)\/\d+/.test(url)) {
+      for (const other of ['otherManager', 'otherRace'] as const) {
+        const res = await clients[other]!.get(url)
+        expect([403, 404], `${other} ${url}`).toContain(res.status)
+        expect(JSON.stringify(res.body)).not.toContain('KV8-1101')
+      }
+    }
+  })
+})
+
+describe('another team cannot change team A\'s records', () => {
+  const writes = routes.filter((r) => r.method !== 'GET' && !PUBLIC.has(`${r.method} ${r.path}`) && r.path.includes('['))
+  it.each(writes.map((r) => [`${r.method} ${r.path}`, r] as const))('%s is refused for a member of another team', async (_n, r) => {
+    const before = await db()('audit_log').count({ n: '*' }).first()
+    for (const other of ['otherManager', 'otherRace'] as const) {
+      const res = await clients[other]!.request(r.method, concrete(r.path), r.method === 'DELETE' ? undefined : {})
+      expect([400, 403, 404, 409], `${other} ${r.method} ${concrete(r.path)} answered ${res.status}`).toContain(res.status)
+    }
+    const after = await db()('audit_log').count({ n: '*' }).first()
+    expect(Number(after!.n)).toBe(Number(before!.n))
+  })
+})
