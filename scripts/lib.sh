@@ -5,6 +5,8 @@ cd "$root"
 say() { echo "[crankledger] $*"; }
 
 ensure_node_modules() {
+  # A symlinked node_modules belongs to another checkout (a worktree): never reinstall through it.
+  [[ -L node_modules && -x node_modules/.bin/nuxt ]] && return 0
   if [[ ! -x node_modules/.bin/nuxt || package-lock.json -nt node_modules/.package-lock.json ]]; then
     say "installing node modules (npm ci)"
     npm ci --no-audit --no-fund
