@@ -6,6 +6,7 @@ import { createWriteStream } from 'node:fs'
 import { Readable } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
 import type { LoggerMapping } from '../shared/domain/logger-mapping'
+import { rng } from '../db/seeds/fleet'
 
 export interface TraceCsvOptions {
   hz: number
@@ -46,18 +47,6 @@ export function traceCsvMapping(opts: Pick<TraceCsvOptions, 'delimiter' | 'decim
     units: { time: 'seconds', speed: 'kmh', temperature: 'C', pressure: 'bar' },
     delimiter: opts.delimiter ?? ',',
     decimal: opts.decimal ?? '.',
-  }
-}
-
-/** Small deterministic PRNG (mulberry32), so every run writes the same file. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
   }
 }
 
@@ -140,7 +129,7 @@ class TraceRows {
   private spikeRpm = 0
 
   constructor(opts: TraceCsvOptions) {
-    this.rnd = prng(opts.seed ?? 20240611)
+    this.rnd = rng(opts.seed ?? 20240611)
     this.dt = 1 / opts.hz
     this.total = Math.round(opts.seconds * opts.hz)
     this.timeDecimals = Math.max(0, Math.ceil(Math.log10(opts.hz) - 1e-9))

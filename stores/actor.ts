@@ -1,25 +1,15 @@
 import { defineStore } from 'pinia'
 import type { Role } from '#shared/roles'
-
-export interface ActorView {
-  id: number
-  name: string
-  email: string
-  role: Role
-  organisationId: number
-  organisationName: string
-  organisationKind: 'supplier' | 'team'
-  supplierId: number
-}
+import type { Actor } from '#shared/types/actor'
 
 // The signed-in person and what their role may do; the server enforces, this only hides.
 export const useActorStore = defineStore('actor', () => {
-  const actor = ref<ActorView | null>(null)
+  const actor = ref<Actor | null>(null)
 
   async function load() {
     const headers = import.meta.server ? useRequestHeaders(['cookie']) : undefined
     try {
-      actor.value = await $fetch<ActorView>('/api/me', { headers })
+      actor.value = await $fetch<Actor>('/api/me', { headers })
     } catch {
       actor.value = null
     }

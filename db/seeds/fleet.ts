@@ -3,6 +3,7 @@
 // with a 12-hour race still to come. Every name here is invented.
 import type { Knex } from 'knex'
 
+/** Small deterministic PRNG (mulberry32), so every run writes the same demo and bench data. */
 export function rng(seed: number) {
   let a = seed >>> 0
   return () => {

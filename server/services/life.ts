@@ -157,28 +157,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
       const fc = forecastPart(usage, limits, cfg, planned, duty, { defaultSecondsPerEvent: meanPerEvent ?? FALLBACK_SECONDS_PER_EVENT })
       forecastInputs.push({ componentId: comp.id, forecast: fc, immediateInspection: life.immediateInspection })
       const pos = et.positions.find((p) => p.position === inst.position)
-      const dto: PartLifeDto = {
-        componentId: comp.id,
-        serial: comp.serial,
-        position: inst.position,
-        positionLabel: pos?.label ?? inst.position,
-        componentTypeId: ct.id,
-        typeName: ct.name,
-        category: ct.category,
-        status: life.status,
-        fraction: life.fraction,
-        governing: life.governing,
-        measures: life.measures,
-        hours: usage.hours,
-        km: usage.km,
-        eqHours: usage.eqHours,
-        overRevCounts: usage.overRevCounts,
-        immediateInspection: life.immediateInspection,
-        warningAt: fc.warningAt,
-        dueAt: fc.dueAt,
-        limitAt: fc.limitAt,
-        assumedDuty: fc.assumedDuty,
-      }
+      const dto = partDto(comp, ct, usage, life, fc, inst.position, pos?.label ?? inst.position)
       partDtos.push(dto)
       parts.set(comp.id, { ...dto, engineId: e.id })
     }
@@ -251,33 +230,45 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     if (!et) continue
     const usage = usageOfComponent(comp.id, ct, iso(comp.inspection_cleared_at))
     const life = evaluatePartLife(usage, limitsOf(ct), lifeConfig(et))
-    parts.set(comp.id, {
-      componentId: comp.id,
-      serial: comp.serial,
-      position: null,
-      positionLabel: null,
-      componentTypeId: ct.id,
-      typeName: ct.name,
-      category: ct.category,
-      status: life.status,
-      fraction: life.fraction,
-      governing: life.governing,
-      measures: life.measures,
-      hours: usage.hours,
-      km: usage.km,
-      eqHours: usage.eqHours,
-      overRevCounts: usage.overRevCounts,
-      immediateInspection: life.immediateInspection,
-      warningAt: null,
-      dueAt: null,
-      limitAt: null,
-      assumedDuty: false,
-      engineId: null,
-    })
+    parts.set(comp.id, { ...partDto(comp, ct, usage, life, null, null, null), engineId: null })
   }
 
   engines.sort((a, b) => a.serial.localeCompare(b.serial))
   return { revision: rev, computedAt: now.toISOString(), engines, parts }
+}
+
+function partDto(
+  comp: { id: number; serial: string },
+  ct: ComponentTypeDto,
+  usage: PartUsage,
+  life: ReturnType<typeof evaluatePartLife>,
+  fc: ReturnType<typeof forecastPart> | null,
+  position: string | null,
+  positionLabel: string | null,
+): PartLifeDto {
+  return {
+    componentId: comp.id,
+    serial: comp.serial,
+    position,
+    positionLabel,
+    componentTypeId: ct.id,
+    typeName: ct.name,
+    category: ct.category,
+    status: life.status,
+    fraction: life.fraction,
+    governing: life.governing,
+    measures: life.measures,
+    hours: usage.hours,
+    km: usage.km,
+    eqHours: usage.eqHours,
+    overRevCounts: usage.overRevCounts,
+    immediateInspection: life.immediateInspection,
+    // A part on the shelf has no coming events to be forecast against.
+    warningAt: fc?.warningAt ?? null,
+    dueAt: fc?.dueAt ?? null,
+    limitAt: fc?.limitAt ?? null,
+    assumedDuty: fc?.assumedDuty ?? false,
+  }
 }
 
 function positionSort(et: EngineTypeDto, position: string | null) {

@@ -1,18 +1,9 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import type { OrganisationKind, Role } from '#shared/roles'
+import type { Role } from '#shared/roles'
+import type { Actor } from '#shared/types/actor'
 
-export interface Actor {
-  id: number
-  name: string
-  email: string
-  role: Role
-  organisationId: number
-  organisationName: string
-  organisationKind: OrganisationKind
-  /** The supplier this actor works for or leases from. */
-  supplierId: number
-}
+export type { Actor }
 
 /**
  * The one guard every API route goes through: a live session of an active user whose
