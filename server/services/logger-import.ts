@@ -41,7 +41,7 @@ export function traceConfigFor(t: EngineTypeDto, trackLengthKm: number | null, l
 
 /** Analyses the stream and keeps a gzip copy of the raw bytes (a fraction of the file's size). */
 async function analyzeAndCompress(input: Readable, mapping: LoggerMapping, cfg: TraceConfig, maxBytes: number) {
-  const gzip = createGzip({ level: 1 })
+  const gzip = createGzip({ level: 1, chunkSize: 1 << 20 })
   const chunks: Buffer[] = []
   gzip.on('data', (c: Buffer) => chunks.push(c))
   const gzipDone = new Promise<void>((resolve, reject) => {
@@ -50,6 +50,8 @@ async function analyzeAndCompress(input: Readable, mapping: LoggerMapping, cfg: 
   })
   // Every chunk goes to the compressor and on to the analyser; backpressure from either holds the input.
   const tee = new Transform({
+    // Room for a few MiB between reader, compressor and analyser so that none waits on the others.
+    highWaterMark: 4 << 20,
     transform(chunk: Buffer, _enc, done) {
       if (gzip.write(chunk)) done(null, chunk)
       else gzip.once('drain', () => done(null, chunk))

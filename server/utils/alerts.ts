@@ -55,13 +55,21 @@ export async function runAlertsNow(): Promise<{ check: LifeCheckResult; delivery
 
 let running: Promise<unknown> | null = null
 let again = false
+let closing = false
+
+/** For shutdown: no new runs, and the one in progress (if any) is finished. */
+export async function settleLifeCheck() {
+  closing = true
+  again = false
+  await running
+}
 
 /**
  * Runs the check in the background (the request does not wait). Calls while one runs coalesce
  * into one more run afterwards, so a burst of imports costs two checks, not one per import.
  */
 export function triggerLifeCheck(): void {
-  if (!alertsEnabled()) return
+  if (!alertsEnabled() || closing) return
   if (running) {
     again = true
     return

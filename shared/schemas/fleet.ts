@@ -44,6 +44,55 @@ export const ComponentTypeUpdateSchema = z
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')
   .refine((v) => v.warningLevel === undefined || v.dueLevel === undefined || v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
 
+export const CharacteristicSchema = z.object({
+  key: z.string().trim().regex(/^[a-z0-9_]{1,40}$/, 'use lower-case letters, digits and _'),
+  label: z.string().trim().min(2).max(80),
+  unit: z.enum(['mm', 'um', 'N', 'N*m', 'deg', '%', 'bar', 'kg', 'g']),
+  nominal: z.number(),
+  min: z.number(),
+  max: z.number(),
+}).refine((c) => c.min <= c.nominal && c.nominal <= c.max, { message: 'needs min <= nominal <= max', path: ['nominal'] })
+
+export const ComponentTypeCreateSchema = z.object({
+  code: z.string().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
+  name: z.string().trim().min(2).max(120),
+  category: z.string().trim().min(2).max(40),
+  limitHours: nullablePositive.default(null),
+  limitKm: nullablePositive.default(null),
+  limitEqHours: nullablePositive.default(null),
+  limitOverRev: z.record(z.string().min(1).max(20), z.number().int().min(0).max(10000)).default({}),
+  immediateInspectionBand: z.string().min(1).max(20).nullable().default(null),
+  warningLevel: z.number().gt(0).lt(1).default(0.8),
+  dueLevel: z.number().gt(0).lt(1).default(0.9),
+  damageExponent: z.number().min(0).max(40).default(0),
+  characteristics: z.array(CharacteristicSchema).max(40).default([]),
+}).refine((v) => v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
+  .refine((v) => v.limitHours !== null || v.limitKm !== null || v.limitEqHours !== null || Object.keys(v.limitOverRev).length > 0, { message: 'a life-limited part needs at least one limit', path: ['limitHours'] })
+
+export const EngineTypeCreateSchema = z.object({
+  code: z.string().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
+  name: z.string().trim().min(2).max(120),
+  series: z.string().trim().min(2).max(80),
+  cylinders: z.number().int().min(1).max(16),
+  layout: z.string().trim().min(2).max(40),
+  boreMm: z.number().positive().max(200),
+  strokeMm: z.number().positive().max(200),
+  conrodMm: z.number().positive().max(400),
+  reciprocatingMassKg: nullablePositive.default(null),
+  revLimitRpm: z.number().int().min(1000).max(25000),
+  idleRpm: z.number().int().min(0).max(6000),
+  bandWidthRpm: z.number().int().min(50).max(2000),
+  referenceRpm: z.number().int().min(1000).max(25000),
+  maxGapS: z.number().positive().max(60).default(1),
+  overRevBands: z.array(OverRevBandSchema).min(1).max(6),
+  lowOilPressure: z.object({ belowBar: z.number().min(0).max(20), aboveRpm: z.number().min(0).max(25000), minDurationS: z.number().min(0).max(60) }),
+  positions: z.array(z.object({ position: z.string().trim().regex(/^[a-z0-9-]{1,40}$/, 'use lower-case letters, digits and -'), label: z.string().trim().min(1).max(80), componentTypeId: z.number().int().positive() })).min(1).max(80),
+})
+  .refine((v) => v.conrodMm > v.strokeMm / 2, { message: 'must be longer than the crank radius (stroke / 2)', path: ['conrodMm'] })
+  .refine((v) => v.idleRpm < v.revLimitRpm, { message: 'must be below the rev limit', path: ['idleRpm'] })
+  .refine((v) => new Set(v.positions.map((p) => p.position)).size === v.positions.length, { message: 'positions must be unique', path: ['positions'] })
+  .refine((v) => new Set(v.overRevBands.map((b) => b.id)).size === v.overRevBands.length, { message: 'band ids must be unique', path: ['overRevBands'] })
+
 export const SESSION_KINDS = ['practice', 'qualifying', 'race', 'test', 'bench'] as const
 
 export const OverRevEventSchema = z.object({

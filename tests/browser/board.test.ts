@@ -1,7 +1,10 @@
+import { readFileSync } from 'node:fs'
+import Papa from 'papaparse'
+import { parse as parseCsv } from 'csv-parse/sync'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { launch, screenshot, signedInPage, TABLET, LAPTOP } from './browser'
-import { USERS } from '../e2e/helpers'
+import { signIn, USERS } from '../e2e/helpers'
 
 let browser: Browser
 beforeAll(async () => {
@@ -41,5 +44,25 @@ describe('fleet life board in Chromium', () => {
     await page.setViewportSize(TABLET)
     await screenshot(page, 'engine-tablet')
     await page.close()
+  })
+
+  it('exports the board as CSV that parses back to the same numbers', async () => {
+    const page = await signedInPage(browser, USERS.supplierEngineer)
+    await page.goto('/?sort=serial')
+    await page.locator('[data-test=board-row]').first().waitFor()
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click('[data-test=export-csv]')])
+    const text = readFileSync((await download.path())!, 'utf8')
+    await page.close()
+    const rows = Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true }).data
+    // A second, independent parser reads the same file the same way.
+    expect(parseCsv(text, { columns: true, skip_empty_lines: true })).toEqual(rows)
+    const api = (await (await signIn(USERS.supplierEngineer)).get('/api/board?sort=serial')).body.engines as any[]
+    expect(rows.map((r) => r.serial)).toEqual(api.map((e) => e.serial))
+    for (const [i, e] of api.entries()) {
+      expect(Number(rows[i]!.worst_used_percent)).toBeCloseTo(e.worst.fraction * 100, 1)
+      expect(Number(rows[i]!.hours_since_rebuild)).toBeCloseTo(e.hoursSinceRebuild, 2)
+      expect(rows[i]!.status).toBe(e.worst.status)
+      expect(rows[i]!.governing_limit).toBe(e.worst.governing?.label ?? '')
+    }
   })
 })

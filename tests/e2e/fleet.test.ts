@@ -215,3 +215,69 @@ describe('roles', () => {
     expect(res.status).toBe(status)
   })
 })
+
+describe('engine and component types', () => {
+  const componentType = (code: string) => ({ code, name: 'Test conrod', category: 'Crank drive', limitHours: 50, damageExponent: 13, limitOverRev: { C: 1 }, immediateInspectionBand: 'C', characteristics: [{ key: 'big_end_ovality', label: 'Big-end bore ovality', unit: 'mm', nominal: 0, min: 0, max: 0.008 }] })
+
+  it('lets the supplier engineer create a component type and an engine type that uses it, with its sheet', async () => {
+    const ct = await supplier.post('/api/component-types', componentType('TST-ROD'))
+    expect(ct.status).toBe(201)
+    expect(ct.body).toMatchObject({ code: 'TST-ROD', limitHours: 50, warningLevel: 0.8, dueLevel: 0.9 })
+    const et = await supplier.post('/api/engine-types', {
+      code: 'TST-V6', name: 'Test V6', series: 'Test series', cylinders: 6, layout: 'V6', boreMm: 90, strokeMm: 90, conrodMm: 145, reciprocatingMassKg: 0.5,
+      revLimitRpm: 7500, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
+      overRevBands: [{ id: 'A', label: 'Logged', minRpm: 7600, minDurationS: 0.2, hysteresisRpm: 100 }],
+      lowOilPressure: { belowBar: 2, aboveRpm: 4000, minDurationS: 0.5 },
+      positions: [1, 2, 3, 4, 5, 6].map((i) => ({ position: `rod-${i}`, label: `Conrod ${i}`, componentTypeId: ct.body.id })),
+    })
+    expect(et.status).toBe(201)
+    // Heywood ch. 2 worked case of check-values (stroke 90, rod 145, 7,500 rpm): 22.5 m/s, 36,372.9 m/s^2 at TDC [derived].
+    expect(et.body.sheet.meanPistonSpeedAtLimit).toBeCloseTo(22.5, 9)
+    expect(et.body.sheet.pistonAccelTdcAtLimit / 36372.9).toBeCloseTo(1, 3)
+    expect(et.body.sheet.firingIntervalDeg).toBe(120)
+    expect(et.body.positions).toHaveLength(6)
+  })
+
+  it('refuses a bad engine type naming the field, a duplicate code, and a team role', async () => {
+    const bad = await supplier.post('/api/engine-types', {
+      code: 'TST-BAD', name: 'Bad', series: 'S', cylinders: 4, layout: 'I4', boreMm: 86, strokeMm: 86, conrodMm: 40, revLimitRpm: 7000, idleRpm: 1000, bandWidthRpm: 500, referenceRpm: 6500,
+      overRevBands: [{ id: 'A', label: 'A', minRpm: 7100, minDurationS: 0, hysteresisRpm: 50 }], lowOilPressure: { belowBar: 2, aboveRpm: 3000, minDurationS: 0.5 }, positions: [{ position: 'crank', label: 'Crank', componentTypeId: 1 }],
+    })
+    expect(bad.status).toBe(400)
+    expect(bad.body.message).toMatch(/conrodMm: must be longer than the crank radius/)
+    expect((await supplier.post('/api/component-types', componentType('TST-ROD'))).status).toBe(409)
+    expect((await managerA.post('/api/component-types', componentType('TST-ROD2'))).status).toBe(403)
+    const noLimit = await supplier.post('/api/component-types', { ...componentType('TST-NOLIM'), limitHours: null, limitOverRev: {} })
+    expect(noLimit.status).toBe(400)
+    expect(noLimit.body.message).toMatch(/limitHours: a life-limited part needs at least one limit/)
+  })
+})
+
+describe('board filters through the API', () => {
+  it('filters by team, engine type, status and location, and sorts by what is due first', async () => {
+    const all = (await supplier.get('/api/board')).body
+    const marlowe = all.teams.find((t: any) => t.name === 'Marlowe Vane Racing')
+    const byTeam = (await supplier.get(`/api/board?team=${marlowe.id}`)).body.engines
+    expect(byTeam.length).toBeGreaterThan(0)
+    expect(byTeam.every((e: any) => e.teamName === 'Marlowe Vane Racing')).toBe(true)
+    const kt4 = all.engineTypes.find((t: any) => t.code === 'KT4-20')
+    expect((await supplier.get(`/api/board?type=${kt4.id}`)).body.engines.every((e: any) => e.engineTypeCode === 'KT4-20')).toBe(true)
+    const shelf = (await supplier.get('/api/board?location=shelf')).body.engines
+    expect(shelf.length).toBeGreaterThan(0)
+    expect(shelf.every((e: any) => e.location === 'shelf')).toBe(true)
+    for (const status of ['ok', 'warning', 'due', 'over']) {
+      const rows = (await supplier.get(`/api/board?status=${status}`)).body.engines
+      expect(rows.every((e: any) => e.worst.status === status), status).toBe(true)
+    }
+    const consumed = (await supplier.get('/api/board?sort=consumed')).body.engines.map((e: any) => e.worst.fraction)
+    expect(consumed).toEqual([...consumed].sort((a: number, b: number) => b - a))
+    const due = (await supplier.get('/api/board?sort=due')).body.engines
+    expect(due[0].worst.status).toBe('over')
+    // A team filter for another team's id shows nothing to a team member, never that team's engines.
+    const tidewater = all.teams.find((t: any) => t.name === 'Tidewater Apex Motorsport')
+    expect((await managerA.get(`/api/board?team=${tidewater.id}`)).body.engines).toEqual([])
+    const bad = await supplier.get('/api/board?status=broken')
+    expect(bad.status).toBe(400)
+    expect(bad.body.message).toMatch(/status/)
+  })
+})
