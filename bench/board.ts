@@ -1,14 +1,11 @@
 // `npm run bench:board`: a large fleet (500 engines, 40 parts each, 200 sessions per engine) in the
 // test database, the built server on loopback, and autocannon at 50 connections against the board API,
 // beside a trivial route measured in the same run. Loopback only; bounded in time.
-import { execFileSync, spawn } from 'node:child_process'
-import { existsSync } from 'node:fs'
 import autocannon from 'autocannon'
 import knexFactory from 'knex'
 import { knexConfig } from '../db/knexfile'
-import { migrateLatest } from '../db/migrations'
-import { seedDemo, DEMO_PASSWORD } from '../db/seeds/demo'
 import { makeHistogram, rng, ENGINE_TYPES } from '../db/seeds/fleet'
+import { sh, signIn, startServer, startTestDb } from './server'
 
 const ENGINES = Number(process.env.BENCH_ENGINES ?? 500)
 const PARTS = 40
@@ -17,18 +14,10 @@ const PORT = Number(process.env.BENCH_PORT ?? 3395)
 const DURATION = Number(process.env.BENCH_SECONDS ?? 20)
 const CONNECTIONS = 50
 
-function sh(cmd: string, args: string[], env: Record<string, string> = {}) {
-  return execFileSync(cmd, args, { env: { ...process.env, ...env }, encoding: 'utf8' }).trim()
-}
 
 async function seedLargeFleet(url: string) {
+  sh('npx', ['tsx', 'db/cli.ts', 'reset'], { NUXT_DATABASE_URL: url })
   const knex = knexFactory(knexConfig(url))
-  const rows: [{ TABLE_NAME: string }[]] = await knex.raw('SELECT TABLE_NAME FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')
-  await knex.raw('SET FOREIGN_KEY_CHECKS = 0')
-  for (const { TABLE_NAME } of rows[0]) await knex.raw('DROP TABLE IF EXISTS ??', [TABLE_NAME])
-  await knex.raw('SET FOREIGN_KEY_CHECKS = 1')
-  await migrateLatest(knex)
-  await seedDemo(knex)
 
   const rand = rng(7)
   const supplier = await knex('organisations').where('kind', 'supplier').first()
@@ -85,28 +74,15 @@ function line(name: string, r: autocannon.Result) {
 }
 
 async function main() {
-  sh('bash', ['db/mariadb.sh', 'start', 'test'])
-  const url = sh('bash', ['db/mariadb.sh', 'url', 'test'])
+  const url = startTestDb()
   console.log(`seeding ${ENGINES} engines x ${PARTS} parts x ${SESSIONS} sessions into the test database`)
   const t0 = Date.now()
   await seedLargeFleet(url)
   console.log(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`)
-  if (!existsSync('.output/server/index.mjs')) sh('npx', ['nuxt', 'build'])
-
-  const server = spawn(process.execPath, ['.output/server/index.mjs'], {
-    env: { ...process.env, PORT: String(PORT), NITRO_HOST: '127.0.0.1', NUXT_DATABASE_URL: url, NUXT_SESSION_PASSWORD: 'bench-session-password-0123456789abcdef', NUXT_ALERTS_ENABLED: 'false' },
-    stdio: ['ignore', 'ignore', 'inherit'],
-  })
+  const server = await startServer(url, PORT)
   try {
-    const base = `http://127.0.0.1:${PORT}`
-    for (let i = 0; i < 120; i++) {
-      try {
-        if ((await fetch(`${base}/api/health`)).ok) break
-      } catch {}
-      await new Promise((r) => setTimeout(r, 250))
-    }
-    const login = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email: 'engineer@keelbrook.test', password: DEMO_PASSWORD }) })
-    const cookie = login.headers.getSetCookie()[0]!.split(';')[0]!
+    const base = server.base
+    const cookie = await signIn(base, 'engineer@keelbrook.test')
     const c0 = Date.now()
     const first = await fetch(`${base}/api/board`, { headers: { cookie } })
     const body = await first.text()
@@ -121,10 +97,7 @@ async function main() {
     console.log(line('board', board))
     console.log(`\ntarget: board p95 (bounded by p97.5) < 150 ms and no errors -> ${p95 < 150 && board.errors + board.non2xx === 0 ? 'met' : 'NOT met'}`)
   } finally {
-    const exited = new Promise((r) => server.once('exit', r))
-    server.kill('SIGTERM')
-    await exited
-    sh('bash', ['db/mariadb.sh', 'stop', 'test'])
+    await server.stop()
   }
 }
 

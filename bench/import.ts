@@ -2,8 +2,8 @@
 // 100 Hz, 10-channel logger files (1 h and 6 h). Each measurement runs in a fresh child
 // process so its peak RSS is its own.  Run: npx tsx bench/import.ts [--keep] [--runs N] [--no-server]
 
-import { execFileSync, spawn, spawnSync } from 'node:child_process'
-import { createReadStream, existsSync, mkdtempSync, rmSync, statSync } from 'node:fs'
+import { spawnSync } from 'node:child_process'
+import { createReadStream, mkdtempSync, rmSync, statSync } from 'node:fs'
 import { request as httpRequest } from 'node:http'
 import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
@@ -12,7 +12,7 @@ import Papa from 'papaparse'
 import { analyzeLoggerStream } from '../server/services/logger-csv'
 import type { TraceConfig } from '../shared/domain/trace'
 import { traceCsvMapping, writeTraceFile } from './make-trace'
-import { DEMO_PASSWORD } from '../db/seeds/demo'
+import { sh, signIn, startServer, startTestDb } from './server'
 
 const HZ = 100
 const FILES = [
@@ -131,27 +131,12 @@ async function main(): Promise<void> {
  * sent to the answer. Uses the test MariaDB instance (reset to the demo data).
  */
 async function wholeImport(file: string) {
-  const sh = (cmd: string, a: string[], env: Record<string, string> = {}) => execFileSync(cmd, a, { env: { ...process.env, ...env }, encoding: 'utf8' }).trim()
-  sh('bash', ['db/mariadb.sh', 'start', 'test'])
-  const url = sh('bash', ['db/mariadb.sh', 'url', 'test'])
+  const url = startTestDb()
   sh('npx', ['tsx', 'db/cli.ts', 'reset'], { NUXT_DATABASE_URL: url })
-  if (!existsSync('.output/server/index.mjs')) sh('npx', ['nuxt', 'build'])
-  const port = 3397
-  const base = `http://127.0.0.1:${port}`
-  const storage = mkdtempSync(join(tmpdir(), 'crankledger-bench-files-'))
-  const server = spawn(process.execPath, ['.output/server/index.mjs'], {
-    env: { ...process.env, PORT: String(port), NITRO_HOST: '127.0.0.1', NUXT_DATABASE_URL: url, NUXT_SESSION_PASSWORD: 'bench-session-password-0123456789abcdef', NUXT_ALERTS_ENABLED: 'false', NUXT_STORAGE_DIR: storage },
-    stdio: ['ignore', 'ignore', 'inherit'],
-  })
+  const server = await startServer(url, 3397)
   try {
-    for (let i = 0; i < 120; i++) {
-      try {
-        if ((await fetch(`${base}/api/health`)).ok) break
-      } catch {}
-      await new Promise((r) => setTimeout(r, 250))
-    }
-    const login = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email: 'race@redfern.test', password: DEMO_PASSWORD }) })
-    const cookie = login.headers.getSetCookie()[0]!.split(';')[0]!
+    const base = server.base
+    const cookie = await signIn(base, 'race@redfern.test')
     const engines = (await (await fetch(`${base}/api/engines`, { headers: { cookie } })).json()) as { id: number; serial: string }[]
     const engine = engines.find((e) => e.serial === 'KT4-2102')!
     const q = new URLSearchParams({ engineId: String(engine.id), kind: 'test', startedAt: new Date().toISOString(), fileName: 'trace-6h.csv', mapping: JSON.stringify(traceCsvMapping()) })
@@ -173,11 +158,7 @@ async function wholeImport(file: string) {
     if (res.status !== 201) throw new Error(`import failed: ${res.status} ${answer.message}`)
     console.log(`whole import of the 6 h file through the server (upload, analysis, storage, database): ${seconds.toFixed(2)} s (target < 5 s); running time found ${(answer.session!.runningSeconds / 3600).toFixed(2)} h`)
   } finally {
-    const exited = new Promise((r) => server.once('exit', r))
-    server.kill('SIGTERM')
-    await exited
-    rmSync(storage, { recursive: true, force: true })
-    sh('bash', ['db/mariadb.sh', 'stop', 'test'])
+    await server.stop()
   }
 }
 

@@ -5,15 +5,8 @@
 // imports of a small generated CSV run back to back (distinct bytes every time, so the
 // duplicate-file check does not refuse them). A trivial route is measured first in the same
 // run for comparison. Target: no errors and p95 under 250 ms.
-import { execFileSync, spawn } from 'node:child_process'
-import { existsSync, mkdtempSync, rmSync } from 'node:fs'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
 import autocannon from 'autocannon'
-import knexFactory from 'knex'
-import { knexConfig } from '../db/knexfile'
-import { migrateLatest } from '../db/migrations'
-import { seedDemo, DEMO_PASSWORD } from '../db/seeds/demo'
+import { sh, signIn, startServer, startTestDb } from './server'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3396)
 const DURATION = Number(process.env.BENCH_SECONDS ?? 60)
@@ -24,21 +17,6 @@ const P95_TARGET_MS = 250
 const READERS = ['engineer@keelbrook.test', 'manager@marlowe.test', 'manager@tidewater.test', 'race@redfern.test']
 // importers: a race engineer and a team manager, each on an engine of their own team
 const IMPORTERS = ['race@redfern.test', 'manager@marlowe.test']
-
-function sh(cmd: string, args: string[]) {
-  return execFileSync(cmd, args, { encoding: 'utf8' }).trim()
-}
-
-async function resetToDemo(url: string) {
-  const knex = knexFactory(knexConfig(url))
-  const rows: [{ TABLE_NAME: string }[]] = await knex.raw('SELECT TABLE_NAME FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')
-  await knex.raw('SET FOREIGN_KEY_CHECKS = 0')
-  for (const { TABLE_NAME } of rows[0]) await knex.raw('DROP TABLE IF EXISTS ??', [TABLE_NAME])
-  await knex.raw('SET FOREIGN_KEY_CHECKS = 1')
-  await migrateLatest(knex)
-  await seedDemo(knex)
-  await knex.destroy()
-}
 
 function percentile(sorted: number[], p: number) {
   if (!sorted.length) return NaN
@@ -79,34 +57,13 @@ function figures(r: autocannon.Result) {
   return { rps: r.requests.average, p50: lat.p50, p90: lat.p90, p97_5: lat.p97_5, p99: lat.p99, errors: r.errors + r.non2xx, total: r.requests.total }
 }
 
-async function signIn(base: string, email: string) {
-  const res = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
-  if (res.status !== 200) throw new Error(`sign-in of ${email}: ${res.status}`)
-  return res.headers.getSetCookie().find((c) => c.startsWith('nuxt-session='))!.split(';')[0]!
-}
-
 async function main() {
-  sh('bash', ['db/mariadb.sh', 'start', 'test'])
-  const url = sh('bash', ['db/mariadb.sh', 'url', 'test'])
+  const url = startTestDb()
   console.log('resetting the test database to the demo scenario')
-  await resetToDemo(url)
-  if (!existsSync('.output/server/index.mjs')) {
-    console.log('building')
-    sh('npx', ['nuxt', 'build'])
-  }
-  const files = mkdtempSync(join(tmpdir(), 'cl-bench-files-'))
-  const server = spawn(process.execPath, ['.output/server/index.mjs'], {
-    env: { ...process.env, PORT: String(PORT), NITRO_HOST: '127.0.0.1', NUXT_DATABASE_URL: url, NUXT_PUBLIC_URL: `http://127.0.0.1:${PORT}`, NUXT_SESSION_PASSWORD: 'bench-session-password-0123456789abcdef', NUXT_ALERTS_ENABLED: 'false', NUXT_STORAGE_DIR: files },
-    stdio: ['ignore', 'ignore', 'inherit'],
-  })
+  sh('npx', ['tsx', 'db/cli.ts', 'reset'], { NUXT_DATABASE_URL: url })
+  const server = await startServer(url, PORT)
   try {
-    const base = `http://127.0.0.1:${PORT}`
-    for (let i = 0; i < 240; i++) {
-      try {
-        if ((await fetch(`${base}/api/health`)).ok) break
-      } catch {}
-      await new Promise((r) => setTimeout(r, 250))
-    }
+    const base = server.base
 
     // The mix: per user, the board once and, per visible engine, its page and its session list.
     const requests: autocannon.Request[] = []
@@ -171,11 +128,7 @@ async function main() {
     const met = errors === 0 && m.p97_5 < P95_TARGET_MS
     console.log(`target: 0 errors and p95 < ${P95_TARGET_MS} ms for the reads -> ${met ? 'met' : 'NOT met'} (errors ${errors}, p95 <= ${m.p97_5} ms)`)
   } finally {
-    const exited = new Promise((r) => server.once('exit', r))
-    server.kill('SIGTERM')
-    await exited
-    rmSync(files, { recursive: true, force: true })
-    sh('bash', ['db/mariadb.sh', 'stop', 'test'])
+    await server.stop()
   }
 }
 
