@@ -231,7 +231,7 @@ describe('engine and component types', () => {
       positions: [1, 2, 3, 4, 5, 6].map((i) => ({ position: `rod-${i}`, label: `Conrod ${i}`, componentTypeId: ct.body.id })),
     })
     expect(et.status).toBe(201)
-    // Heywood ch. 2 worked case of check-values (stroke 90, rod 145, 7,500 rpm): 22.5 m/s, 36,372.9 m/s^2 at TDC [derived].
+    // Heywood, Internal Combustion Engine Fundamentals, ch. 2 slider-crank formulas; worked case stroke 90 mm, rod 145 mm, 7,500 rpm: 22.5 m/s, 36,372.9 m/s^2 at TDC (derived).
     expect(et.body.sheet.meanPistonSpeedAtLimit).toBeCloseTo(22.5, 9)
     expect(et.body.sheet.pistonAccelTdcAtLimit / 36372.9).toBeCloseTo(1, 3)
     expect(et.body.sheet.firingIntervalDeg).toBe(120)

@@ -1,5 +1,5 @@
 // Benchmark (not a test): oil assessment over a large synthetic fleet history.
-// `npx tsx scripts/bench-oil.ts [engines] [samplesPerEngine]`
+// `npm run bench:oil -- [engines] [samplesPerEngine]`
 import { DEFAULT_OIL_LIMITS, OIL_ELEMENTS, type OilSampleValues } from '../shared/domain/oil/limits'
 import { assessEngineHistory, assessLatest, leaveOneOutLimits } from '../shared/domain/oil/history'
 
