@@ -275,4 +275,16 @@ describe('the lab\'s PDF report', () => {
     const row = await db()('oil_samples').where('id', s.body.id).first()
     expect(row.attachment_key).toBeNull()
   })
+
+  it('refuses a report over the size cap while reading it, and keeps nothing', async () => {
+    const s = await post(raceB, { sampleId: sid('BIGPDF'), sampledAt: at(22) })
+    const filesBefore = storedReports()
+    const big = Buffer.concat([Buffer.from('%PDF-1.4\n'), Buffer.alloc(11 * 1024 * 1024, 32)])
+    const form = new FormData()
+    form.append('file', new Blob([big], { type: 'application/pdf' }), 'big.pdf')
+    const up = await raceB.request('POST', `/api/oil/samples/${s.body.id}/report`, form)
+    expect(up.status).toBe(413)
+    expect(up.body.message).toMatch(/file: the file is larger than 10 MB/)
+    expect(storedReports()).toBe(filesBefore)
+  })
 })

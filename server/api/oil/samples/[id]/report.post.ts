@@ -4,16 +4,7 @@ import { attachOilReport, PDF_MAX_BYTES } from '../../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const { id } = readValidParams(event, IdParams)
-  // Refuse an oversized upload before reading it into memory.
-  const length = Number(getRequestHeader(event, 'content-length') ?? 0)
-  if (length > PDF_MAX_BYTES + 64 * 1024) badRequest(`file: the report must be at most ${PDF_MAX_BYTES / 1024 / 1024} MB`)
-  let parts: Awaited<ReturnType<typeof readMultipartFormData>>
-  try {
-    parts = await readMultipartFormData(event)
-  } catch {
-    badRequest('file: send the report as multipart/form-data')
-  }
-  const file = parts?.find((p) => p.name === 'file' && p.filename !== undefined)
-  if (!file) badRequest('file: attach the report as the form field "file"')
-  return attachOilReport(useDb(), actor, id, { data: file.data, filename: file.filename, type: file.type })
+  // The size cap is enforced while the upload is read, not after.
+  const file = await readFileUpload(event, { field: 'file', maxBytes: PDF_MAX_BYTES })
+  return attachOilReport(useDb(), actor, id, { data: Buffer.from(file.bytes), filename: file.name ?? undefined, type: file.declaredType ?? undefined })
 })
