@@ -10,8 +10,7 @@ import { join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import Papa from 'papaparse'
 import { analyzeLoggerStream } from '../server/services/logger-csv'
-import type { TraceConfig } from '../shared/domain/trace'
-import { traceCsvMapping, writeTraceFile } from './make-trace'
+import { BENCH_TRACE_CONFIG, traceCsvMapping, writeTraceFile } from './make-trace'
 import { sh, signIn, startServer, startTestDb } from './server'
 
 const HZ = 100
@@ -21,21 +20,6 @@ const FILES = [
 ]
 const MODES = ['crankledger', 'papaparse'] as const
 type Mode = typeof MODES[number]
-
-// Demo engine type with invented over-rev bands (levels as in common practice: log, inspect, teardown).
-export const BENCH_TRACE_CONFIG: TraceConfig = {
-  idleRpm: 2500,
-  bandWidthRpm: 250,
-  maxGapS: 0.5,
-  overRevBands: [
-    { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 100 },
-    { id: 'inspect', label: 'Inspect valve train', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
-    { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 100 },
-  ],
-  lowOilPressure: { belowBar: 2.5, aboveRpm: 4000, minDurationS: 0.2 },
-  trackLengthKm: null,
-  laps: null,
-}
 
 interface Measurement { mode: Mode; seconds: number; rows: number; bytes: number; maxRssMB: number }
 

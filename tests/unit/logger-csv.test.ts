@@ -6,7 +6,7 @@ import { Readable } from 'node:stream'
 import { parse as csvParse } from 'csv-parse'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { makeTraceCsv, traceCsvMapping, TRACE_CSV_HEADER } from '../../bench/make-trace'
+import { BENCH_TRACE_CONFIG, makeTraceCsv, traceCsvMapping, TRACE_CSV_HEADER } from '../../bench/make-trace'
 import { LoggerImportError, MAX_LISTED_WARNINGS, analyzeLoggerStream } from '../../server/services/logger-csv'
 import {
   detectDecimal,
@@ -21,20 +21,8 @@ import {
 } from '../../shared/domain/logger-mapping'
 import { createTraceAnalyzer, type TraceConfig, type TraceSummary } from '../../shared/domain/trace'
 
-const CFG: TraceConfig = {
-  idleRpm: 2500,
-  bandWidthRpm: 250,
-  maxGapS: 0.5,
-  // log / inspect / teardown bands: common practice; the rpm levels are invented demo values
-  overRevBands: [
-    { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 100 },
-    { id: 'inspect', label: 'Inspect valve train', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
-    { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 100 },
-  ],
-  lowOilPressure: { belowBar: 2.5, aboveRpm: 4000, minDurationS: 0.2 },
-  trackLengthKm: null,
-  laps: null,
-}
+// The synthetic files' engine type: log / inspect / teardown bands as in common practice, invented rpm levels.
+const CFG: TraceConfig = BENCH_TRACE_CONFIG
 
 const SIMPLE: LoggerMapping = {
   columns: { time: 'time', rpm: 'rpm', speed: 'speed', oilPressure: 'oil_p' },
