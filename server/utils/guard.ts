@@ -8,7 +8,7 @@ export type { Actor }
 /**
  * The one guard every API route goes through: a live session of an active user whose
  * session version still matches, holding one of `roles`. Organisation scoping is applied
- * with `scopeQuery` / `assertVisible`, so records of another organisation answer 404.
+ * with `scopeQuery` / `canSee`, so records of another organisation answer 404.
  */
 export async function requireActor(event: H3Event, roles: readonly Role[]): Promise<Actor> {
   let actor = event.context.actor as Actor | undefined
@@ -75,10 +75,4 @@ export function canSee(actor: Actor, owner: { supplierId: number | null; teamId:
   if (actor.role === 'admin') return true
   if (actor.organisationKind === 'supplier') return owner.supplierId === actor.organisationId
   return owner.teamId === actor.organisationId
-}
-
-/** A record the actor may not see is answered exactly like one that does not exist. */
-export function assertVisible<T>(actor: Actor, record: T | undefined | null, owner: (r: T) => { supplierId: number | null; teamId: number | null }, what = 'Record'): T {
-  if (!record || !canSee(actor, owner(record))) notFound(what)
-  return record
 }

@@ -19,11 +19,6 @@ export interface PlannedEvent {
   plannedKm: number | null
 }
 
-/** do not use; see EngineDuty */
-export interface RecentDuty {
-  eqPerRunningHourByExponent?: never
-}
-
 export interface EngineDuty {
   /** fraction of running time per band over recent sessions, sums to 1, or [] when none */
   histogramShare: number[]
