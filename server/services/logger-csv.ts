@@ -50,6 +50,7 @@ import {
 import { toBar, toCelsius, toKmh } from '../../shared/domain/units'
 import {
   TRACE_MAX_RPM,
+  TRACE_MAX_SPEED,
   createTraceAnalyzer,
   type TraceAnalyzer,
   type TraceConfig,
@@ -485,7 +486,7 @@ class LoggerCsvReader {
       const gear = iGear >= 0 ? parseDecimal(row[iGear]!, dec) : 0
 
       if (
-        t !== t || rpm !== rpm || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 ||
+        t !== t || rpm !== rpm || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 || speed > TRACE_MAX_SPEED ||
         (speed !== speed && iSpeed >= 0) || (oilT !== oilT && iOilTemp >= 0) ||
         (oilP !== oilP && iOilPressure >= 0) || (waterT !== waterT && iWaterTemp >= 0) ||
         throttle !== throttle || gear !== gear
@@ -529,6 +530,7 @@ class LoggerCsvReader {
       const v = parseDecimal(cell, dec)
       if (v !== v) return this.badCell(line, col, `${quoteCell(cell)} is not a number`)
       if (col === this.iSpeed && v < 0) return this.badCell(line, col, `${v} is below 0`)
+      if (col === this.iSpeed && v > TRACE_MAX_SPEED) return this.badCell(line, col, `${v} is above ${TRACE_MAX_SPEED}, more than any vehicle runs`)
     }
     return false
   }

@@ -12,8 +12,9 @@ export type LoggerDelimiter = typeof LOGGER_DELIMITERS[number]
 
 export const LoggerMappingSchema = z.object({
   columns: z.object({
-    time: z.string().min(1),
-    rpm: z.string().min(1),
+    // Header cells are compared trimmed, so a name of only blanks names no column.
+    time: z.string().trim().min(1, 'name the time column'),
+    rpm: z.string().trim().min(1, 'name the rpm column'),
     speed: z.string().optional(),
     oilTemp: z.string().optional(),
     oilPressure: z.string().optional(),

@@ -101,6 +101,8 @@ export interface TraceAnalyzer {
 
 /** Above any engine's rev range; keeps a corrupt value from sizing the histogram. */
 export const TRACE_MAX_RPM = 100_000
+/** Above any vehicle's speed in any unit the reader accepts (km/h or mph): a cell past it is unreadable. */
+export const TRACE_MAX_SPEED = 1000
 export const OVERVIEW_MAX_POINTS = 600
 export const MAX_LISTED_GAPS = 1000
 /** Decimal timestamps (0.1 + 0.2) must not drop an event that lasts exactly minDurationS. */

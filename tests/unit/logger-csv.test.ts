@@ -262,6 +262,20 @@ describe('warnings: skipped rows', () => {
     ])
   })
 
+  it('refuses a mapping whose time or rpm column is only blanks', async () => {
+    // Found by the fuzz test: a tab as the rpm column name reached the row loop unmapped.
+    const csv = simpleCsv(10)
+    await expect(analyzeLoggerStream(bytesStream(csv), { ...SIMPLE, columns: { ...SIMPLE.columns, rpm: '\t' } }, CFG)).rejects.toMatchObject({ code: 'invalid_mapping', status: 400 })
+  })
+
+  it('skips a speed no vehicle reaches, so a distance never runs to infinity', async () => {
+    // Found by the fuzz test: a finite but absurd speed cell (1e308) made the distance Infinity.
+    const csv = simpleCsv(1000, (k) => (k === 40 ? { speed: '1e308' } : {}))
+    const r = await analyzeLoggerStream(bytesStream(csv), SIMPLE, CFG, { maxBadRowShare: 0.01 })
+    expect(r.warnings.map((w) => w.message)).toEqual(['Row 42, column "speed": 1e+308 is above 1000, more than any vehicle runs'])
+    expect(Number.isFinite(r.summary.distanceKm)).toBe(true)
+  })
+
   it('an empty optional cell is no value, not a bad row', async () => {
     const csv = simpleCsv(100, (k) => (k % 10 === 0 ? { oil_p: '' } : k === 5 ? { oil_p: '1.5' } : {}))
     const r = await analyzeLoggerStream(bytesStream(csv), SIMPLE, CFG)
