@@ -13,6 +13,15 @@ ensure_node_modules() {
   fi
 }
 
+# The browser tests drive Debian's Chromium (never a downloaded browser); a fresh machine lacks it.
+ensure_chromium() {
+  [[ -x /usr/bin/chromium ]] && return 0
+  say "chromium is missing: installing Debian's package (apt-get) for the browser tests"
+  export DEBIAN_FRONTEND=noninteractive
+  apt-get update -qq >/dev/null
+  apt-get install -y -qq chromium >/dev/null
+}
+
 # A secret that survives restarts, so that sessions do too; never committed.
 ensure_session_secret() {
   local file="$root/.data/session-secret"

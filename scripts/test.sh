@@ -14,6 +14,7 @@ export NUXT_STORAGE_DIR="$root/.data-test/files"
 export NUXT_LOGGER_MAX_BYTES=4000000
 
 bash db/mariadb.sh ensure-installed
+ensure_chromium
 ensure_node_modules
 
 MAILDEV_PID=""
