@@ -52,7 +52,9 @@ import {
   TRACE_MAX_RPM,
   TRACE_MAX_SPEED,
   createTraceAnalyzer,
+  createTraceBlock,
   type TraceAnalyzer,
+  type TraceBlock,
   type TraceConfig,
   type TraceSummary,
 } from '../../shared/domain/trace'
@@ -164,14 +166,13 @@ class LoggerCsvReader {
   private readonly hash = createHash('sha256')
   // UTF-8 bytes of a character split across chunks, carried to the next chunk
   private carry: Buffer | null = null
-  private carryLine = 0
   private decodedAny = false
   bytes = 0
 
   // byte-level line scan, for the line length limit
   private newlineByte = LF
-  private lineNo = 0 // complete lines seen
-  private lineLen = 0
+  private newlineKnown = false
+  private lineLen = 0 // bytes of the unfinished line carried from earlier chunks
   private lastByteCR = false
 
   // text stage
@@ -195,13 +196,22 @@ class LoggerCsvReader {
   private iGear = -1
   private decimalCode = 46
   private clock = false
+  // Mapped numeric channels other than time: column index and the block column it fills.
+  private valueIndex = new Int32Array(0)
+  private valueColumns: Float64Array[] = []
+
+  // one block of converted samples per parsed chunk, reused; unmapped channels stay NaN
+  private block: TraceBlock = createTraceBlock(0)
+  // throttle and gear feed no figure yet; they are still read so a corrupt row is caught
+  private throttle = new Float64Array(0)
+  private gear = new Float64Array(0)
 
   // rows
   rows = 0
   skippedRows = 0
   warnings: LoggerImportWarning[] = []
   private accepted = 0
-  private lastT = 0
+  private lastT = NaN // a double from the start: a field that turns from integer to double costs V8 a deoptimisation
   private lastTLine = 0
   private clockStarted = false
   private clockT0 = 0
@@ -232,27 +242,53 @@ class LoggerCsvReader {
     if (before < TEXT_SNIFF_BYTES) {
       const head = buf.subarray(0, TEXT_SNIFF_BYTES - before)
       if (head.indexOf(0) >= 0) throw new LoggerImportError('not_text', 'The file is not a text CSV (it contains NUL bytes)')
-      if (before === 0) {
-        const cr = head.indexOf(CR)
-        if (cr >= 0 && cr + 1 < head.length && head[cr + 1] !== LF) {
-          const lf = head.indexOf(LF)
-          if (lf < 0 || lf > cr) this.newlineByte = CR // old-style CR-only line ends
-        }
-      }
     }
-    const lineAtChunk = this.lineNo // 0-based line where this chunk starts
-    this.scanLines(buf)
+    if (!this.newlineKnown) this.detectNewline(buf)
+    const lineAtChunk = this.completeLines()
+    this.scanLines(buf, lineAtChunk)
     this.text(this.decode(buf, before, lineAtChunk))
     this.onProgress?.(this.bytes)
   }
 
+  /**
+   * Line ends are LF (or CR LF) unless the file's first line break is a lone CR (old-style
+   * files). Decided at the first break, however small the chunks: a CR that ends a chunk
+   * waits for the next chunk's first byte.
+   */
+  private detectNewline(buf: Buffer): void {
+    if (this.lastByteCR) {
+      this.newlineKnown = true
+      if (buf[0] !== LF) {
+        this.newlineByte = CR
+        this.lineLen = 0 // that CR ended the line
+      }
+      return
+    }
+    const cr = buf.indexOf(CR)
+    const lf = buf.indexOf(LF)
+    if (cr < 0 && lf < 0) return
+    if (cr < 0 || (lf >= 0 && lf < cr)) this.newlineKnown = true
+    else if (cr + 1 < buf.length) {
+      this.newlineKnown = true
+      if (buf[cr + 1] !== LF) this.newlineByte = CR
+    }
+  }
+
+  /**
+   * Lines handed on so far: every line before the one this chunk continues (the text
+   * stage keeps no complete line back between chunks).
+   */
+  private completeLines(): number {
+    return this.parser ? this.dataLine : this.headerLine
+  }
+
   // isUtf8 (simdutf) plus toString is several times faster than a fatal TextDecoder here.
-  private decode(chunk: Buffer, byteOffset: number, chunkLine: number): string {
+  // A character split across chunks is carried; it sits on the unfinished line, so the
+  // chunk's first line is still the carry's line.
+  private decode(chunk: Buffer, byteOffset: number, line: number): string {
     let buf = chunk
-    let line = chunkLine
     if (this.carry) {
       buf = Buffer.concat([this.carry, chunk])
-      line = this.carryLine
       this.carry = null
     }
     // hold back an incomplete multi-byte sequence at the end
@@ -268,7 +304,6 @@ class LoggerCsvReader {
     }
     if (cut < buf.length) {
       this.carry = Buffer.from(buf.subarray(cut))
-      this.carryLine = this.lineNo
       buf = buf.subarray(0, cut)
     }
     if (!isUtf8(buf)) this.throwBadUtf8(byteOffset, line + this.linesBeforeBadUtf8(buf))
@@ -281,7 +316,7 @@ class LoggerCsvReader {
   }
 
   end(): LoggerImportResult {
-    if (this.carry) this.throwBadUtf8(this.bytes, this.lineNo) // file ends inside a character
+    if (this.carry) this.throwBadUtf8(this.bytes, this.completeLines()) // file ends inside a character
     if (!this.parser) {
       // no line break after the first non-blank line
       if (isBlank(this.headerText.replace(/[\r\n]/g, ''))) throw new LoggerImportError('empty_file', 'The file is empty')
@@ -339,30 +374,54 @@ class LoggerCsvReader {
     )
   }
 
-  private scanLines(buf: Buffer): void {
+  /**
+   * The line length limit without a lookup per line: from the start of the current line,
+   * the last line break within the next maxLineLength bytes is looked up backwards, so one
+   * lookup passes a whole window of short lines. Only a window with no break in it is
+   * looked at closely (a line of exactly the limit followed by CR LF is allowed).
+   */
+  private scanLines(buf: Buffer, lineAtChunk: number): void {
     const nl = this.newlineByte
     const max = this.maxLineLength
-    let pos = 0
+    const n = buf.length
+    let start = -this.lineLen // where the current line began, relative to buf
     for (;;) {
-      const at = buf.indexOf(nl, pos)
-      if (at < 0) {
-        this.lineLen += buf.length - pos
-        this.lastByteCR = buf[buf.length - 1] === CR
-        // a CR may still be followed by LF in the next chunk
-        if (this.lineLen - (this.lastByteCR ? 1 : 0) > max) this.throwLongLine()
-        return
+      const edge = start + max // the byte after the longest allowed line
+      if (edge >= n) break
+      if (edge >= 0) {
+        const at = buf.lastIndexOf(nl, edge)
+        if (at >= 0 && at >= start) {
+          start = at + 1
+          continue
+        }
       }
-      this.lineLen += at - pos
-      const cr = at > 0 ? buf[at - 1] === CR : this.lastByteCR
-      if (this.lineLen - (cr && nl === LF ? 1 : 0) > max) this.throwLongLine()
-      this.lineNo++
-      this.lineLen = 0
-      pos = at + 1
+      const crAtEdge = edge >= 0 ? buf[edge] === CR : this.lastByteCR
+      if (nl === LF && crAtEdge) {
+        if (edge + 1 >= n) break // CR is the chunk's last byte: the next chunk tells
+        if (buf[edge + 1] === LF) {
+          start = edge + 2
+          continue
+        }
+      }
+      this.throwLongLine(lineAtChunk + this.breaksBefore(buf, start) + 1)
+    }
+    const last = buf.lastIndexOf(nl)
+    this.lineLen = last >= 0 && last >= start ? n - last - 1 : n - start
+    this.lastByteCR = buf[n - 1] === CR
+    // a CR may still be followed by LF in the next chunk
+    if (this.lineLen - (this.lastByteCR && nl === LF ? 1 : 0) > max) {
+      this.throwLongLine(lineAtChunk + this.breaksBefore(buf, n) + 1)
     }
   }
 
-  private throwLongLine(): never {
-    const row = this.lineNo + 1
+  /** Only on failure: line breaks in buf before index `end`. */
+  private breaksBefore(buf: Buffer, end: number): number {
+    let count = 0
+    for (let at = buf.indexOf(this.newlineByte); at >= 0 && at < end; at = buf.indexOf(this.newlineByte, at + 1)) count++
+    return count
+  }
+
+  private throwLongLine(row: number): never {
     throw new LoggerImportError('line_too_long', `Row ${row} is longer than ${this.maxLineLength} bytes`, { row })
   }
 
@@ -419,6 +478,7 @@ class LoggerCsvReader {
     this.iThrottle = idx.throttle
     this.iGear = idx.gear
     this.dataLine = this.headerLine
+    this.growBlock(1024)
     this.parser = new Papa.Parser({ delimiter: this.delimiter, newline: newline as '\n', header: false, skipEmptyLines: false })
   }
 
@@ -438,28 +498,48 @@ class LoggerCsvReader {
     if (this.skippedRows > this.maxBadRows) this.throwTooManyBad(this.maxBadRows)
   }
 
+  /** A new, larger block (a chunk has more rows than the last one), with its column list. */
+  private growBlock(capacity: number): void {
+    const b = createTraceBlock(capacity)
+    for (const col of [b.speedKmh, b.oilTempC, b.oilPressureBar, b.waterTempC]) col.fill(NaN)
+    this.block = b
+    this.throttle = new Float64Array(capacity)
+    this.gear = new Float64Array(capacity)
+    const pairs: [number, Float64Array][] = [
+      [this.iRpm, b.rpm],
+      [this.iSpeed, b.speedKmh],
+      [this.iOilTemp, b.oilTempC],
+      [this.iOilPressure, b.oilPressureBar],
+      [this.iWaterTemp, b.waterTempC],
+      [this.iThrottle, this.throttle],
+      [this.iGear, this.gear],
+    ]
+    const mapped = pairs.filter(([i]) => i >= 0)
+    this.valueIndex = Int32Array.from(mapped, ([i]) => i)
+    this.valueColumns = mapped.map(([, col]) => col)
+  }
+
   /**
-   * Hot loop: one pass per row with the column indices in locals. A row whose cells all
-   * read as numbers goes straight through; anything else takes rowProblem() to be told
-   * apart (a blank optional cell is fine, the rest is reported).
+   * Hot loop: one pass per row, numbers parsed straight into the block's columns (one
+   * parse call site, so it is inlined and nothing is boxed), then the block goes to the
+   * analyzer in one call. A row whose mapped cells all read as numbers goes straight
+   * through; anything else takes rowProblem() to be told apart (a blank optional cell is
+   * fine, the rest is reported).
    */
   private takeRows(rows: string[][]): void {
+    if (rows.length > this.block.t.length) this.growBlock(rows.length)
     const ncol = this.ncol
     const dec = this.decimalCode
-    const units = this.mapping.units
-    const convSpeed = units.speed !== 'kmh'
-    const convTemp = units.temperature !== 'C'
-    const convPressure = units.pressure !== 'bar'
     const clock = this.clock
     const iTime = this.iTime
-    const iRpm = this.iRpm
-    const iSpeed = this.iSpeed
-    const iOilTemp = this.iOilTemp
-    const iOilPressure = this.iOilPressure
-    const iWaterTemp = this.iWaterTemp
-    const iThrottle = this.iThrottle
-    const iGear = this.iGear
-    const analyzer = this.analyzer
+    const valueIndex = this.valueIndex
+    const valueColumns = this.valueColumns
+    const nvalues = valueIndex.length
+    const { t: T, rpm: RPM, speedKmh: SPEED } = this.block
+    let k = 0
+    let accepted = this.accepted
+    let lastT = this.lastT
+    let lastTLine = this.lastTLine
     for (let r = 0; r < rows.length; r++) {
       const row = rows[r]!
       const line = ++this.dataLine
@@ -476,36 +556,41 @@ class LoggerCsvReader {
         const raw = parseClock(row[iTime]!)
         t = raw === null ? NaN : this.clockSeconds(raw)
       } else t = parseDecimal(row[iTime]!, dec)
-      const rpm = parseDecimal(row[iRpm]!, dec)
-      let speed = iSpeed >= 0 ? parseDecimal(row[iSpeed]!, dec) : NaN
-      let oilT = iOilTemp >= 0 ? parseDecimal(row[iOilTemp]!, dec) : NaN
-      let oilP = iOilPressure >= 0 ? parseDecimal(row[iOilPressure]!, dec) : NaN
-      let waterT = iWaterTemp >= 0 ? parseDecimal(row[iWaterTemp]!, dec) : NaN
-      // throttle and gear feed no figure yet; they are still read so a corrupt row is caught
-      const throttle = iThrottle >= 0 ? parseDecimal(row[iThrottle]!, dec) : 0
-      const gear = iGear >= 0 ? parseDecimal(row[iGear]!, dec) : 0
-
-      if (
-        t !== t || rpm !== rpm || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 || speed > TRACE_MAX_SPEED ||
-        (speed !== speed && iSpeed >= 0) || (oilT !== oilT && iOilTemp >= 0) ||
-        (oilP !== oilP && iOilPressure >= 0) || (waterT !== waterT && iWaterTemp >= 0) ||
-        throttle !== throttle || gear !== gear
-      ) {
+      let unreadable = t !== t
+      for (let c = 0; c < nvalues; c++) {
+        const v = parseDecimal(row[valueIndex[c]!]!, dec)
+        valueColumns[c]![k] = v
+        if (v !== v) unreadable = true
+      }
+      const rpm = RPM[k]!
+      const speed = SPEED[k]!
+      if (unreadable || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 || speed > TRACE_MAX_SPEED) {
         if (this.rowProblem(row, line)) continue
       }
-      if (convSpeed && speed === speed) speed = toKmh(speed, units.speed)
-      if (convTemp) {
-        if (oilT === oilT) oilT = toCelsius(oilT, units.temperature)
-        if (waterT === waterT) waterT = toCelsius(waterT, units.temperature)
-      }
-      if (convPressure && oilP === oilP) oilP = toBar(oilP, units.pressure)
-
-      if (this.accepted > 0 && t <= this.lastT) this.throwTimeOrder(row[iTime]!, t, line)
-      this.accepted++
-      this.lastT = t
-      this.lastTLine = line
-      analyzer.pushValues(t, rpm, speed, oilT, oilP, waterT)
+      if (accepted > 0 && t <= lastT) this.throwTimeOrder(row[iTime]!, t, line, lastT, lastTLine)
+      T[k++] = t
+      accepted++
+      lastT = t
+      lastTLine = line
     }
+    this.accepted = accepted
+    this.lastT = lastT
+    this.lastTLine = lastTLine
+    this.convertUnits(k)
+    this.analyzer.pushBlock(this.block, k)
+  }
+
+  private convertUnits(count: number): void {
+    const { speed, temperature, pressure } = this.mapping.units
+    const b = this.block
+    if (speed !== 'kmh') for (let i = 0; i < count; i++) b.speedKmh[i] = toKmh(b.speedKmh[i]!, speed)
+    if (temperature !== 'C') {
+      for (let i = 0; i < count; i++) {
+        b.oilTempC[i] = toCelsius(b.oilTempC[i]!, temperature)
+        b.waterTempC[i] = toCelsius(b.waterTempC[i]!, temperature)
+      }
+    }
+    if (pressure !== 'bar') for (let i = 0; i < count; i++) b.oilPressureBar[i] = toBar(b.oilPressureBar[i]!, pressure)
   }
 
   /** Reports the first unreadable mapped cell of the row and returns true; false when the row is fine after all. */
@@ -540,12 +625,12 @@ class LoggerCsvReader {
     return true
   }
 
-  private throwTimeOrder(cell: string, t: number, line: number): never {
+  private throwTimeOrder(cell: string, t: number, line: number, lastT: number, lastTLine: number): never {
     const col = this.header[this.iTime]!
-    if (t === this.lastT) {
-      throw new LoggerImportError('time_duplicate', `Row ${line}, column "${col}": ${quoteCell(cell)} repeats the timestamp of row ${this.lastTLine}`, { row: line, column: col })
+    if (t === lastT) {
+      throw new LoggerImportError('time_duplicate', `Row ${line}, column "${col}": ${quoteCell(cell)} repeats the timestamp of row ${lastTLine}`, { row: line, column: col })
     }
-    throw new LoggerImportError('time_backwards', `Row ${line}, column "${col}": ${quoteCell(cell)} is earlier than row ${this.lastTLine}`, { row: line, column: col })
+    throw new LoggerImportError('time_backwards', `Row ${line}, column "${col}": ${quoteCell(cell)} is earlier than row ${lastTLine}`, { row: line, column: col })
   }
 
   /** Seconds from the first data row; a time of day that falls back > 12 h passed midnight. */
@@ -569,7 +654,7 @@ class LoggerCsvReader {
  * errors of the stream itself are passed on unchanged.
  */
 export async function analyzeLoggerStream(
-  input: NodeJS.ReadableStream | Readable,
+  input: Readable,
   mapping: LoggerMapping,
   cfg: TraceConfig,
   opts: LoggerImportOptions = {},

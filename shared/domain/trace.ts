@@ -91,11 +91,41 @@ export interface TraceSummary {
   overview: { t: number; rpm: number }[]
 }
 
+/**
+ * Samples in columns, NaN for an absent value: the import path fills one block per chunk of
+ * rows and hands it over in one call, so no number is boxed on its way into the analyzer.
+ */
+export interface TraceBlock {
+  t: Float64Array
+  rpm: Float64Array
+  speedKmh: Float64Array
+  oilTempC: Float64Array
+  oilPressureBar: Float64Array
+  waterTempC: Float64Array
+}
+
+export function createTraceBlock(capacity: number): TraceBlock {
+  return {
+    t: new Float64Array(capacity),
+    rpm: new Float64Array(capacity),
+    speedKmh: new Float64Array(capacity),
+    oilTempC: new Float64Array(capacity),
+    oilPressureBar: new Float64Array(capacity),
+    waterTempC: new Float64Array(capacity),
+  }
+}
+
 export interface TraceAnalyzer {
   /** Copies what it needs: the caller may reuse one sample object for every push. */
   push(s: TraceSample): void
   /** push() with plain numbers, NaN for an absent channel: no object per sample. */
   pushValues(t: number, rpm: number, speedKmh: number, oilTempC: number, oilPressureBar: number, waterTempC: number): void
+  /**
+   * The first `count` samples of the block, in order. A block with an invalid sample
+   * (time not finite or not increasing, rpm out of range) is refused whole with a
+   * RangeError and changes nothing; the caller may reuse the block afterwards.
+   */
+  pushBlock(block: TraceBlock, count: number): void
   finish(): TraceSummary
 }
 
@@ -145,8 +175,8 @@ export function createTraceAnalyzer(cfg: TraceConfig): TraceAnalyzer {
   return new TraceAnalyzerCore(cfg)
 }
 
-// A class rather than a closure: V8 keeps number fields of an object unboxed, while
-// numbers captured by a closure are boxed on every update (a heap allocation per sample).
+// The state lives in fields between blocks and in locals within one: the loop then keeps
+// every number in a register, with no object shape for V8 to re-check after each call.
 class TraceAnalyzerCore implements TraceAnalyzer {
   private readonly cfg: TraceConfig
   private readonly bands: OverRevBandConfig[]
@@ -159,21 +189,23 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   private readonly lopBelow: number
   private readonly lopAbove: number
   private readonly lopMinDuration: number
+  private readonly single = createTraceBlock(1)
 
+  // Fields read only once a sample has set them start as NaN, so V8 holds them as
+  // doubles from the start instead of changing the object's shape on the first fraction.
   private samples = 0
-  private firstT = 0
-  private prevT = 0
+  private firstT = NaN
+  private prevT = NaN
   private prevSpeed = NaN
 
   // Histogram by segments of consecutive steps in one band: one subtraction per segment
   // keeps sums exact for decimal timestamps (no drift from adding 0.01 a million times).
   private readonly histogram: number[] = []
   private segBand = -1 // -1: not running
-  private segStart = 0
+  private segStart = NaN
   private runningSeconds = 0
 
   private distanceKm = 0
-  private sawSpeed = false
 
   private readonly gaps: TraceGap[] = []
   private gapCount = 0
@@ -181,13 +213,13 @@ class TraceAnalyzerCore implements TraceAnalyzer {
 
   private readonly overRevs: OverRevEvent[] = []
   private orOpen = false
-  private orStart = 0
-  private orPeak = 0
+  private orStart = NaN
+  private orPeak = NaN
 
   private readonly lowOil: LowOilPressureEvent[] = []
   private lopOpen = false
-  private lopStart = 0
-  private lopMin = 0
+  private lopStart = NaN
+  private lopMin = NaN
 
   private maxRpm = 0
   private maxOilTemp = -Infinity
@@ -201,7 +233,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   private bucketSize = 1
   private bucketCount = 0
   private bucketMax = -1
-  private bucketT = 0
+  private bucketT = NaN
 
   constructor(cfg: TraceConfig) {
     validateTraceConfig(cfg)
@@ -224,93 +256,191 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   }
 
   pushValues(t: number, rpm: number, speed: number, oilTemp: number, oilPressure: number, waterTemp: number): void {
-    if (!Number.isFinite(t)) throw new RangeError(`sample time must be finite, got ${t}`)
-    if (!(rpm >= 0 && rpm <= TRACE_MAX_RPM)) throw new RangeError(`rpm must be within 0..${TRACE_MAX_RPM}, got ${rpm}`)
-    const hasSpeed = speed === speed
-    const band = rpm > this.idleRpm ? Math.floor(rpm / this.bandWidth) : -1
+    const b = this.single
+    b.t[0] = t
+    b.rpm[0] = rpm
+    b.speedKmh[0] = speed
+    b.oilTempC[0] = oilTemp
+    b.oilPressureBar[0] = oilPressure
+    b.waterTempC[0] = waterTemp
+    this.pushBlock(b, 1)
+  }
 
-    if (this.samples === 0) {
-      this.firstT = t
-      this.segBand = band
-      this.segStart = t
-    } else {
-      const prevT = this.prevT
-      const dt = t - prevT
-      if (!(dt > 0)) throw new RangeError(`sample times must increase: ${t} after ${prevT}`)
-      if (dt > this.maxGap) {
-        this.gapCount++
-        this.gapSeconds += dt
-        if (this.gaps.length < MAX_LISTED_GAPS) this.gaps.push({ atS: prevT - this.firstT, seconds: dt })
-        this.flushSegment(prevT)
-        this.segBand = band
-        this.segStart = t
-        if (this.orOpen) this.closeOverRev(prevT)
-        if (this.lopOpen) this.closeLowOil(prevT)
+  pushBlock(block: TraceBlock, count: number): void {
+    const T = block.t
+    const RPM = block.rpm
+    const SPEED = block.speedKmh
+    const OIL_T = block.oilTempC
+    const OIL_P = block.oilPressureBar
+    const WATER_T = block.waterTempC
+    if (count > T.length) throw new RangeError(`count ${count} is larger than the block (${T.length})`)
+    this.checkBlock(T, RPM, count)
+
+    const idleRpm = this.idleRpm
+    const bandWidth = this.bandWidth
+    const maxGap = this.maxGap
+    const hasBands = this.hasBands
+    const enterRpm = this.enterRpm
+    const exitRpm = this.exitRpm
+    const lopBelow = this.lopBelow
+    const lopAbove = this.lopAbove
+    let samples = this.samples
+    let prevT = this.prevT
+    let prevSpeed = this.prevSpeed
+    let segBand = this.segBand
+    let segStart = this.segStart
+    let distanceKm = this.distanceKm
+    let orOpen = this.orOpen
+    let orStart = this.orStart
+    let orPeak = this.orPeak
+    let lopOpen = this.lopOpen
+    let lopStart = this.lopStart
+    let lopMin = this.lopMin
+    let maxRpm = this.maxRpm
+    let maxSpeed = this.maxSpeed
+    let maxOilTemp = this.maxOilTemp
+    let maxWaterTemp = this.maxWaterTemp
+    let minOilPressure = this.minOilPressure
+    let bucketSize = this.bucketSize
+    let bucketCount = this.bucketCount
+    let bucketMax = this.bucketMax
+    let bucketT = this.bucketT
+
+    for (let i = 0; i < count; i++) {
+      const t = T[i]!
+      const rpm = RPM[i]!
+      const speed = SPEED[i]!
+      const oilPressure = OIL_P[i]!
+      const hasSpeed = speed === speed
+      const band = rpm > idleRpm ? Math.floor(rpm / bandWidth) : -1
+
+      if (samples === 0) {
+        this.firstT = t
+        segBand = band
+        segStart = t
       } else {
-        if (band !== this.segBand) {
-          this.flushSegment(t)
-          this.segBand = band
-          this.segStart = t
+        const dt = t - prevT
+        if (dt > maxGap) {
+          // the gap counts nowhere: whatever was open ends at the sample before it
+          this.recordGap(prevT, dt)
+          this.addSegment(segBand, segStart, prevT)
+          segBand = band
+          segStart = t
+          if (orOpen) this.recordOverRev(orStart, prevT, orPeak)
+          if (lopOpen) this.recordLowOil(lopStart, prevT, lopMin)
+          orOpen = false
+          lopOpen = false
+        } else {
+          if (band !== segBand) {
+            this.addSegment(segBand, segStart, t)
+            segBand = band
+            segStart = t
+          }
+          // trapezoid; with one end missing, hold the known value
+          if (hasSpeed || prevSpeed === prevSpeed) {
+            const a = prevSpeed === prevSpeed ? prevSpeed : speed
+            const b = hasSpeed ? speed : prevSpeed
+            distanceKm += ((a + b) * 0.5 * dt) / 3600
+          }
         }
-        // trapezoid; with one end missing, hold the known value
-        const v0 = this.prevSpeed
-        if (hasSpeed || v0 === v0) {
-          const a = v0 === v0 ? v0 : speed
-          const b = hasSpeed ? speed : v0
-          this.distanceKm += ((a + b) * 0.5 * dt) / 3600
+      }
+
+      if (hasBands) {
+        if (orOpen) {
+          if (rpm < exitRpm) {
+            this.recordOverRev(orStart, t, orPeak)
+            orOpen = false
+          } else if (rpm > orPeak) orPeak = rpm
+        }
+        if (!orOpen && rpm >= enterRpm) {
+          orOpen = true
+          orStart = t
+          orPeak = rpm
         }
       }
-    }
 
-    if (this.hasBands) {
-      if (this.orOpen) {
-        if (rpm < this.exitRpm) this.closeOverRev(t)
-        else if (rpm > this.orPeak) this.orPeak = rpm
+      const lowNow = oilPressure < lopBelow && rpm > lopAbove // false for NaN
+      if (lopOpen) {
+        if (!lowNow) {
+          this.recordLowOil(lopStart, t, lopMin)
+          lopOpen = false
+        } else if (oilPressure < lopMin) lopMin = oilPressure
       }
-      if (!this.orOpen && rpm >= this.enterRpm) {
-        this.orOpen = true
-        this.orStart = t
-        this.orPeak = rpm
+      if (!lopOpen && lowNow) {
+        lopOpen = true
+        lopStart = t
+        lopMin = oilPressure
       }
+
+      if (rpm > maxRpm) maxRpm = rpm
+      if (speed > maxSpeed) maxSpeed = speed // false for NaN
+      const oilTemp = OIL_T[i]!
+      if (oilTemp > maxOilTemp) maxOilTemp = oilTemp
+      const waterTemp = WATER_T[i]!
+      if (waterTemp > maxWaterTemp) maxWaterTemp = waterTemp
+      if (band >= 0 && oilPressure < minOilPressure) minOilPressure = oilPressure
+
+      if (rpm > bucketMax) {
+        bucketMax = rpm
+        bucketT = t
+      }
+      if (++bucketCount >= bucketSize) {
+        bucketSize = this.addOverviewPoint(bucketT, bucketMax)
+        bucketCount = 0
+        bucketMax = -1
+      }
+
+      samples++
+      prevT = t
+      prevSpeed = speed
     }
 
-    const lowNow = oilPressure < this.lopBelow && rpm > this.lopAbove // false for NaN
-    if (this.lopOpen) {
-      if (!lowNow) this.closeLowOil(t)
-      else if (oilPressure < this.lopMin) this.lopMin = oilPressure
-    }
-    if (!this.lopOpen && lowNow) {
-      this.lopOpen = true
-      this.lopStart = t
-      this.lopMin = oilPressure
-    }
+    this.samples = samples
+    this.prevT = prevT
+    this.prevSpeed = prevSpeed
+    this.segBand = segBand
+    this.segStart = segStart
+    this.distanceKm = distanceKm
+    this.orOpen = orOpen
+    this.orStart = orStart
+    this.orPeak = orPeak
+    this.lopOpen = lopOpen
+    this.lopStart = lopStart
+    this.lopMin = lopMin
+    this.maxRpm = maxRpm
+    this.maxSpeed = maxSpeed
+    this.maxOilTemp = maxOilTemp
+    this.maxWaterTemp = maxWaterTemp
+    this.minOilPressure = minOilPressure
+    this.bucketCount = bucketCount
+    this.bucketMax = bucketMax
+    this.bucketT = bucketT
+  }
 
-    if (rpm > this.maxRpm) this.maxRpm = rpm
-    if (hasSpeed) {
-      this.sawSpeed = true
-      if (speed > this.maxSpeed) this.maxSpeed = speed
+  /** Refuses the whole block before any state changes. */
+  private checkBlock(T: Float64Array, RPM: Float64Array, count: number): void {
+    let prevT = this.samples > 0 ? this.prevT : -Infinity
+    for (let i = 0; i < count; i++) {
+      const t = T[i]!
+      const rpm = RPM[i]!
+      if (!(t > prevT && t < Infinity)) {
+        if (!Number.isFinite(t)) throw new RangeError(`sample time must be finite, got ${t}`)
+        throw new RangeError(`sample times must increase: ${t} after ${prevT}`)
+      }
+      if (!(rpm >= 0 && rpm <= TRACE_MAX_RPM)) throw new RangeError(`rpm must be within 0..${TRACE_MAX_RPM}, got ${rpm}`)
+      prevT = t
     }
-    if (oilTemp > this.maxOilTemp) this.maxOilTemp = oilTemp
-    if (waterTemp > this.maxWaterTemp) this.maxWaterTemp = waterTemp
-    if (band >= 0 && oilPressure < this.minOilPressure) this.minOilPressure = oilPressure
-
-    if (rpm > this.bucketMax) {
-      this.bucketMax = rpm
-      this.bucketT = t
-    }
-    if (++this.bucketCount >= this.bucketSize) this.closeBucket()
-
-    this.samples++
-    this.prevT = t
-    this.prevSpeed = speed
   }
 
   finish(): TraceSummary {
     if (this.samples > 0) {
-      this.flushSegment(this.prevT)
+      const endT = this.prevT
+      this.addSegment(this.segBand, this.segStart, endT)
       this.segBand = -1
-      if (this.orOpen) this.closeOverRev(this.prevT)
-      if (this.lopOpen) this.closeLowOil(this.prevT)
+      if (this.orOpen) this.recordOverRev(this.orStart, endT, this.orPeak)
+      if (this.lopOpen) this.recordLowOil(this.lopStart, endT, this.lopMin)
+      this.orOpen = false
+      this.lopOpen = false
       if (this.bucketCount > 0) {
         this.ovT.push(this.bucketT)
         this.ovRpm.push(this.bucketMax)
@@ -320,7 +450,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     const cfg = this.cfg
     let distance = 0
     let source: TraceSummary['distanceSource'] = 'none'
-    if (this.sawSpeed) {
+    if (this.maxSpeed !== -Infinity) {
       distance = this.distanceKm
       source = 'speed'
     } else if (cfg.laps !== null && cfg.trackLengthKm !== null) {
@@ -350,46 +480,48 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     }
   }
 
-  private flushSegment(untilT: number): void {
-    const b = this.segBand
-    const dt = untilT - this.segStart
+  private recordGap(atT: number, seconds: number): void {
+    this.gapCount++
+    this.gapSeconds += seconds
+    if (this.gaps.length < MAX_LISTED_GAPS) this.gaps.push({ atS: atT - this.firstT, seconds })
+  }
+
+  private addSegment(band: number, startT: number, untilT: number): void {
+    const dt = untilT - startT
     // a zero-length segment (the last sample's band) must not lengthen the histogram
-    if (b >= 0 && dt > 0) {
+    if (band >= 0 && dt > 0) {
       const h = this.histogram
-      while (h.length <= b) h.push(0)
-      h[b]! += dt
+      while (h.length <= band) h.push(0)
+      h[band]! += dt
       this.runningSeconds += dt
     }
   }
 
-  private closeOverRev(endT: number): void {
-    this.orOpen = false
-    const duration = endT - this.orStart
+  private recordOverRev(startT: number, endT: number, peakRpm: number): void {
+    const duration = endT - startT
     const bands = this.bands
     for (let i = bands.length - 1; i >= 0; i--) {
       const band = bands[i]!
-      if (this.orPeak >= band.minRpm && duration + DURATION_EPSILON_S >= band.minDurationS) {
-        this.overRevs.push({ bandId: band.id, startS: this.orStart - this.firstT, durationS: duration, peakRpm: this.orPeak })
+      if (peakRpm >= band.minRpm && duration + DURATION_EPSILON_S >= band.minDurationS) {
+        this.overRevs.push({ bandId: band.id, startS: startT - this.firstT, durationS: duration, peakRpm })
         return
       }
     }
   }
 
-  private closeLowOil(endT: number): void {
-    this.lopOpen = false
-    const duration = endT - this.lopStart
+  private recordLowOil(startT: number, endT: number, minBar: number): void {
+    const duration = endT - startT
     if (duration + DURATION_EPSILON_S >= this.lopMinDuration) {
-      this.lowOil.push({ startS: this.lopStart - this.firstT, durationS: duration, minBar: this.lopMin })
+      this.lowOil.push({ startS: startT - this.firstT, durationS: duration, minBar })
     }
   }
 
-  private closeBucket(): void {
+  /** Closes a bucket; returns the bucket size from now on (doubled when pairs merged). */
+  private addOverviewPoint(t: number, rpm: number): number {
     const ovT = this.ovT
     const ovRpm = this.ovRpm
-    ovT.push(this.bucketT)
-    ovRpm.push(this.bucketMax)
-    this.bucketCount = 0
-    this.bucketMax = -1
+    ovT.push(t)
+    ovRpm.push(rpm)
     if (ovT.length >= OVERVIEW_MAX_POINTS) {
       const half = ovT.length >> 1
       for (let i = 0; i < half; i++) {
@@ -402,6 +534,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
       ovRpm.length = half
       this.bucketSize *= 2
     }
+    return this.bucketSize
   }
 }
 

@@ -351,6 +351,51 @@ describe('fatal: refused files', () => {
     expect([e2.code, e2.row]).toEqual(['line_too_long', 1])
   })
 
+  it('the line length limit holds wherever lines and chunks fall (checked against splitting the file)', async () => {
+    // The reader looks for line breaks a window at a time; the reference splits the whole file.
+    const max = 16
+    await fc.assert(
+      fc.asyncProperty(
+        fc.array(fc.integer({ min: 0, max: max + 3 }), { minLength: 1, maxLength: 40 }),
+        fc.constantFrom('\n', '\r\n', '\r'),
+        fc.integer({ min: 1, max: 64 }),
+        async (lengths, nl, chunk) => {
+          const lines = ['time,rpm', ...lengths.map((n) => '7'.repeat(n))]
+          const text = lines.join(nl) + nl
+          const tooLong = lines.findIndex((l) => l.length > max)
+          let code = 'accepted'
+          let row: number | undefined
+          try {
+            await analyzeLoggerStream(bytesStream(text, chunk), { ...SIMPLE, columns: { time: 'time', rpm: 'rpm' } }, CFG, { maxLineLength: max })
+          } catch (e) {
+            code = (e as LoggerImportError).code
+            row = (e as LoggerImportError).row
+          }
+          if (tooLong >= 0) expect([code, row]).toEqual(['line_too_long', tooLong + 1])
+          else expect(code).not.toBe('line_too_long')
+        },
+      ),
+      { numRuns: 300 },
+    )
+  })
+
+  it('a line of exactly the limit passes with LF, with CR LF, and with CR LF split across chunks', async () => {
+    const header = 'time,rpm,speed,oil_p'
+    const line = '0.00,6000,144.0,4.00' // as long as the header: the limit below
+    expect(line.length).toBe(header.length)
+    for (const nl of ['\n', '\r\n']) {
+      const csv = `${header}${nl}${line}${nl}0.01,6000,144.0,4${nl}`
+      for (const chunk of [0, 1, 2, 3, header.length + nl.length + line.length + 1]) {
+        const r = await analyzeLoggerStream(bytesStream(csv, chunk), SIMPLE, CFG, { maxLineLength: header.length })
+        expect(r.rows).toBe(2)
+      }
+    }
+    for (const chunk of [0, 1, 7]) {
+      const e = await importError(analyzeLoggerStream(bytesStream(`${header}\r\n${line}0\r\n`, chunk), SIMPLE, CFG, { maxLineLength: header.length }))
+      expect([e.code, e.row]).toEqual(['line_too_long', 2])
+    }
+  })
+
   it('a file over maxBytes is refused with status 413', async () => {
     const e = await importError(analyzeLoggerStream(bytesStream(simpleCsv(1000), 256), SIMPLE, CFG, { maxBytes: 5000 }))
     expect([e.code, e.status]).toEqual(['file_too_large', 413])
