@@ -1,7 +1,8 @@
 // Streaming import of a data-logger CSV (plain CSV with a header row) into a TraceSummary.
 // One pass over a Node stream: bytes are counted, hashed (SHA-256 of the file as sent) and
 // checked, decoded as UTF-8, split into rows by papaparse's parser, converted (only the
-// mapped columns) and pushed into the trace analyzer. No row is kept.
+// channels the analysis uses) into typed columns, and handed to the trace analyzer a block
+// per chunk. No row is kept.
 //
 // The figures are an aid to the supplier's service instructions, inspection and licensed
 // practice, never a substitute: a file that cannot be read with confidence is refused
@@ -22,11 +23,13 @@
 //   too_many_bad_rows    more skipped rows than maxBadRows (default 1000) or than
 //                        maxBadRowShare (default 1 %) of the data rows, at least 1 row  400
 // Warning (row skipped, counted in skippedRows, the first 50 listed with row and column):
-//   a mapped cell that is not a number (or not a clock time), rpm outside 0..TRACE_MAX_RPM,
+//   a cell of an analysed channel that is not a number (or not a clock time), rpm outside 0..TRACE_MAX_RPM,
 //   a negative speed, an empty time or rpm cell, a row with a different number of fields
 //   than the header.
 // Silently accepted: blank lines (not counted as rows), an empty cell in an optional
-// channel (that channel is absent for the sample, as with mixed-rate loggers).
+// channel (that channel is absent for the sample, as with mixed-rate loggers). Throttle and
+// gear columns must exist when mapped, but they feed no figure yet, so their cells are not
+// read: a glitch there does not cost a good rpm sample.
 //
 // Rows are numbered as file lines, header = 1 (blank lines count). A quoted cell holding a
 // line break would shift later numbers; logger exports do not write those.
@@ -192,8 +195,6 @@ class LoggerCsvReader {
   private iOilTemp = -1
   private iOilPressure = -1
   private iWaterTemp = -1
-  private iThrottle = -1
-  private iGear = -1
   private decimalCode = 46
   private clock = false
   // Mapped numeric channels other than time: column index and the block column it fills.
@@ -202,9 +203,6 @@ class LoggerCsvReader {
 
   // one block of converted samples per parsed chunk, reused; unmapped channels stay NaN
   private block: TraceBlock = createTraceBlock(0)
-  // throttle and gear feed no figure yet; they are still read so a corrupt row is caught
-  private throttle = new Float64Array(0)
-  private gear = new Float64Array(0)
 
   // rows
   rows = 0
@@ -475,8 +473,6 @@ class LoggerCsvReader {
     this.iOilTemp = idx.oilTemp
     this.iOilPressure = idx.oilPressure
     this.iWaterTemp = idx.waterTemp
-    this.iThrottle = idx.throttle
-    this.iGear = idx.gear
     this.dataLine = this.headerLine
     this.growBlock(1024)
     this.parser = new Papa.Parser({ delimiter: this.delimiter, newline: newline as '\n', header: false, skipEmptyLines: false })
@@ -503,16 +499,12 @@ class LoggerCsvReader {
     const b = createTraceBlock(capacity)
     for (const col of [b.speedKmh, b.oilTempC, b.oilPressureBar, b.waterTempC]) col.fill(NaN)
     this.block = b
-    this.throttle = new Float64Array(capacity)
-    this.gear = new Float64Array(capacity)
     const pairs: [number, Float64Array][] = [
       [this.iRpm, b.rpm],
       [this.iSpeed, b.speedKmh],
       [this.iOilTemp, b.oilTempC],
       [this.iOilPressure, b.oilPressureBar],
       [this.iWaterTemp, b.waterTempC],
-      [this.iThrottle, this.throttle],
-      [this.iGear, this.gear],
     ]
     const mapped = pairs.filter(([i]) => i >= 0)
     this.valueIndex = Int32Array.from(mapped, ([i]) => i)
@@ -608,7 +600,7 @@ class LoggerCsvReader {
     const rpm = parseDecimal(rpmCell, dec)
     if (rpm !== rpm) return this.badCell(line, this.iRpm, `${quoteCell(rpmCell)} is not a number`)
     if (rpm < 0 || rpm > TRACE_MAX_RPM) return this.badCell(line, this.iRpm, `${rpm} is outside 0..${TRACE_MAX_RPM} rpm`)
-    for (const col of [this.iSpeed, this.iOilTemp, this.iOilPressure, this.iWaterTemp, this.iThrottle, this.iGear]) {
+    for (const col of [this.iSpeed, this.iOilTemp, this.iOilPressure, this.iWaterTemp]) {
       if (col < 0) continue
       const cell = row[col]!
       if (isBlank(cell)) continue

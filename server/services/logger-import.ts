@@ -1,7 +1,7 @@
 // A session from a logger file: one streaming pass (analysis, SHA-256 and a gzip copy of the raw
 // file side by side), then one transaction; the raw file is kept for re-processing and is never
 // left behind when the import fails.
-import { createGzip, gunzipSync } from 'node:zlib'
+import { createGunzip, createGzip } from 'node:zlib'
 import { Readable, Transform } from 'node:stream'
 import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
@@ -176,7 +176,10 @@ export async function reprocessSession(db: Knex, actor: Actor, sessionId: number
   const cfg = traceConfigFor(type!, ev ? Number(ev.track_length_km) : null, details?.laps ?? null)
   let result: LoggerImportResult
   try {
-    result = await analyzeLoggerStream(Readable.from([gunzipSync(raw)]), details.mapping, cfg, { maxBytes })
+    // decompressed as it is read: a 6 h file is never whole in memory
+    const unpacked = createGunzip()
+    unpacked.end(raw)
+    result = await analyzeLoggerStream(unpacked, details.mapping, cfg, { maxBytes })
   } catch (error) {
     importErrorToHttp(error)
   }

@@ -246,6 +246,16 @@ describe('warnings: skipped rows', () => {
     expect(r.warnings).toEqual([{ row: 57, column: 'rpm', message: 'Row 57, column "rpm": "12a00" is not a number' }])
   })
 
+  it('keeps a sample whose throttle or gear cell is unreadable: those channels feed no figure', async () => {
+    const csv = 'time,rpm,speed,oil_p,tps,gear\n0.00,6000,144.0,4.00,55,3\n0.01,6000,144.0,4.00,##,x\n0.02,6000,144.0,4.00,56,3\n'
+    const mapping: LoggerMapping = { ...SIMPLE, columns: { ...SIMPLE.columns, throttle: 'tps', gear: 'gear' } }
+    const r = await analyzeLoggerStream(bytesStream(csv), mapping, CFG)
+    expect([r.rows, r.skippedRows, r.summary.samples]).toEqual([3, 0, 3])
+    // a mapped column must still be in the header
+    const e = await importError(analyzeLoggerStream(bytesStream(csv.replace('tps', 'pedal')), mapping, CFG))
+    expect([e.code, e.column]).toEqual(['missing_column', 'tps'])
+  })
+
   it('skips a row with the wrong number of fields', async () => {
     const csv = simpleCsv(200).replace('\n0.10,6000,144.0,4.00\n', '\n0.10,6000,144.0\n')
     const r = await analyzeLoggerStream(bytesStream(csv), SIMPLE, CFG)
