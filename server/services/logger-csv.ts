@@ -474,7 +474,7 @@ class LoggerCsvReader {
     this.iOilPressure = idx.oilPressure
     this.iWaterTemp = idx.waterTemp
     this.dataLine = this.headerLine
-    this.growBlock(1024)
+    this.growBlock(4096) // rows of a 64 KiB chunk and then some: no regrowth in the usual case
     this.parser = new Papa.Parser({ delimiter: this.delimiter, newline: newline as '\n', header: false, skipEmptyLines: false })
   }
 
