@@ -209,7 +209,7 @@ class LoggerCsvReader {
   skippedRows = 0
   warnings: LoggerImportWarning[] = []
   private accepted = 0
-  private lastT = NaN // a double from the start: a field that turns from integer to double costs V8 a deoptimisation
+  private lastT = NaN // read only once a row is accepted
   private lastTLine = 0
   private clockStarted = false
   private clockT0 = 0
@@ -514,7 +514,7 @@ class LoggerCsvReader {
   /**
    * Hot loop: one pass per row, numbers parsed straight into the block's columns (one
    * parse call site, so it is inlined and nothing is boxed), then the block goes to the
-   * analyzer in one call. A row whose mapped cells all read as numbers goes straight
+   * analyzer in one call. A row whose analysed cells all read as numbers goes straight
    * through; anything else takes rowProblem() to be told apart (a blank optional cell is
    * fine, the rest is reported).
    */
@@ -585,7 +585,7 @@ class LoggerCsvReader {
     if (pressure !== 'bar') for (let i = 0; i < count; i++) b.oilPressureBar[i] = toBar(b.oilPressureBar[i]!, pressure)
   }
 
-  /** Reports the first unreadable mapped cell of the row and returns true; false when the row is fine after all. */
+  /** Reports the first unreadable analysed cell of the row and returns true; false when the row is fine after all. */
   private rowProblem(row: string[], line: number): boolean {
     const dec = this.decimalCode
     const tCell = row[this.iTime]!

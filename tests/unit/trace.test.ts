@@ -10,6 +10,7 @@ import {
   TraceConfigError,
   analyzeTrace,
   createTraceAnalyzer,
+  createTraceBlock,
   type TraceConfig,
   type TraceSample,
 } from '../../shared/domain/trace'
@@ -426,5 +427,60 @@ describe('against a step-by-step reference (property test)', () => {
       }),
       { numRuns: 300 },
     )
+  })
+})
+
+describe('blocks of samples', () => {
+  const sampleArb = fc.record({
+    dt: fc.oneof(fc.constant(0.01), fc.double({ min: 0.001, max: 3, noNaN: true })),
+    rpm: fc.integer({ min: 0, max: 11000 }),
+    speed: fc.option(fc.double({ min: 0, max: 330, noNaN: true }), { nil: undefined }),
+    oilP: fc.option(fc.double({ min: 0, max: 7, noNaN: true }), { nil: undefined }),
+    oilT: fc.option(fc.double({ min: 60, max: 140, noNaN: true }), { nil: undefined }),
+  })
+
+  it('give the same summary as pushing the samples one by one, however the blocks are cut', () => {
+    fc.assert(
+      fc.property(fc.array(sampleArb, { minLength: 1, maxLength: 400 }), fc.integer({ min: 1, max: 64 }), (steps, blockSize) => {
+        const cfg = makeConfig()
+        let t = 0
+        const samples: TraceSample[] = steps.map((s) => ({ t: (t += s.dt), rpm: s.rpm, speedKmh: s.speed, oilPressureBar: s.oilP, oilTempC: s.oilT }))
+        const one = analyzeTrace(cfg, samples)
+        const a = createTraceAnalyzer(cfg)
+        const block = createTraceBlock(blockSize)
+        for (let i = 0; i < samples.length; i += blockSize) {
+          const part = samples.slice(i, i + blockSize)
+          part.forEach((s, k) => {
+            block.t[k] = s.t
+            block.rpm[k] = s.rpm
+            block.speedKmh[k] = s.speedKmh ?? NaN
+            block.oilTempC[k] = s.oilTempC ?? NaN
+            block.oilPressureBar[k] = s.oilPressureBar ?? NaN
+            block.waterTempC[k] = NaN
+          })
+          a.pushBlock(block, part.length)
+        }
+        expect(a.finish()).toEqual(one)
+      }),
+      { numRuns: 200 },
+    )
+  })
+
+  it('a block with one bad sample is refused whole and changes nothing', () => {
+    const cfg = makeConfig()
+    const a = createTraceAnalyzer(cfg)
+    a.push({ t: 0, rpm: 6000 })
+    const block = createTraceBlock(3)
+    block.t.set([0.01, 0.02, 0.02])
+    block.rpm.set([6000, 9700, 6000])
+    expect(() => a.pushBlock(block, 3)).toThrow(/must increase/)
+    block.t.set([0.01, 0.02, 0.03])
+    block.rpm.set([6000, 6000, Number.NaN])
+    expect(() => a.pushBlock(block, 3)).toThrow(/rpm/)
+    expect(() => a.pushBlock(block, 4)).toThrow(/larger than the block/)
+    a.push({ t: 0.01, rpm: 6000 })
+    const s = a.finish()
+    expect([s.samples, s.maxRpm, s.overRevs.length]).toEqual([2, 6000, 0])
+    expect(s.runningSeconds).toBeCloseTo(0.01, 12)
   })
 })
