@@ -76,6 +76,7 @@ export function locationText(location: keyof typeof LOCATION_WORD, chassis: stri
 
 export const REASON_TEXT = {
   'already-over': 'a part is already at its limit',
+  'incomplete-build': 'a position of the build has no part fitted',
   inspection: 'an over-rev calls for inspection first',
   'projected-over': 'a part would reach its limit during the event',
   'no-projection': 'no planned running and no recent duty to project from',
@@ -103,6 +104,8 @@ export function engineForecastText(e: ForecastInput): { main: string; sub: strin
   switch (next.reason) {
     case 'projected-over':
       return { main: `Limit reached at ${next.name}`, sub: 'Rebuild or swap before this event', tone: 'over' }
+    case 'incomplete-build':
+      return { main: 'Build incomplete', sub: 'A position has no part fitted: must not run', tone: 'over' }
     case 'inspection':
       return { main: `Inspect before ${next.name}`, sub: REASON_TEXT.inspection, tone: 'over' }
     case 'no-projection':

@@ -163,7 +163,8 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     }
     partDtos.sort((a, b) => positionSort(et, a.position) - positionSort(et, b.position))
 
-    const efc = forecastEngine(forecastInputs, planned)
+    const emptyPositions = et.positions.filter((p) => !open.some((i) => i.position === p.position))
+    const efc = forecastEngine(forecastInputs, planned, { emptyPositions: emptyPositions.length })
     const plannedById = new Map(planned.map((p) => [p.eventId, p]))
     const canFinish: CanFinishDto[] = efc.canFinish.map((c) => ({
       ...c,
@@ -216,7 +217,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
       nextEvent: canFinish.find((c) => c.assigned) ?? canFinish[0] ?? null,
       canFinish,
       parts: partDtos,
-      emptyPositions: et.positions.filter((p) => !open.some((i) => i.position === p.position)),
+      emptyPositions,
     })
   }
 

@@ -171,7 +171,7 @@ export function forecastPart(
   }
 }
 
-export type CanFinishReason = 'already-over' | 'inspection' | 'projected-over' | 'no-projection'
+export type CanFinishReason = 'already-over' | 'incomplete-build' | 'inspection' | 'projected-over' | 'no-projection'
 
 export interface EngineForecast {
   warningAt: EventRef | null
@@ -197,10 +197,11 @@ export interface EnginePartInput {
 
 /**
  * Engine view over its parts. An event cannot be finished when any part is already over,
- * flagged for immediate inspection, projected at or over its limit after the event, or has
- * no projection for it (an unknown is never reported as fit to run).
+ * a position of the build has no part fitted (`emptyPositions`), a part is flagged for
+ * immediate inspection, projected at or over its limit after the event, or has no
+ * projection for it (an unknown is never reported as fit to run).
  */
-export function forecastEngine(parts: EnginePartInput[], events: PlannedEvent[]): EngineForecast {
+export function forecastEngine(parts: EnginePartInput[], events: PlannedEvent[], build: { emptyPositions?: number } = {}): EngineForecast {
   const ordered = inDateOrder(events)
   const order = new Map(ordered.map((e, i) => [e.eventId, i]))
   const earliest = (refs: (EventRef | null)[]): EventRef | null => {
@@ -214,6 +215,7 @@ export function forecastEngine(parts: EnginePartInput[], events: PlannedEvent[])
   }
 
   const anyOver = parts.some((p) => p.forecast.alreadyOver)
+  const incomplete = (build.emptyPositions ?? 0) > 0
   const anyInspection = parts.some((p) => p.immediateInspection)
 
   const canFinish = ordered.map((ev) => {
@@ -235,7 +237,9 @@ export function forecastEngine(parts: EnginePartInput[], events: PlannedEvent[])
     }
     const reason: CanFinishReason | null = anyOver
       ? 'already-over'
-      : anyInspection
+      : incomplete
+        ? 'incomplete-build'
+        : anyInspection
         ? 'inspection'
         : projectedOver
           ? 'projected-over'

@@ -94,6 +94,11 @@ describe('life accounting through the API', () => {
     expect(engine.body.totalHours).toBe(0)
     const audits = await db()('audit_log').where('entity', 'installation').whereIn('action', ['fit', 'remove'])
     expect(audits.length).toBeGreaterThanOrEqual(3)
+    // the engine the rod left has an empty position: no event reads as fit to run until it is filled
+    const left = (await supplier.get('/api/board?q=KV8-1103')).body.engines[0]
+    expect(left.canFinish.length).toBeGreaterThan(0)
+    expect(left.canFinish.every((c: any) => !c.ok && c.reason === 'incomplete-build')).toBe(true)
+    expect(left.nextEvent).toMatchObject({ ok: false, reason: 'incomplete-build' })
   })
 
   it('moves every affected fraction at once when a limit changes, and audits it', async () => {

@@ -306,6 +306,16 @@ describe('forecastEngine', () => {
     expect(e.canFinish[0]?.governingPartId).toBe(14)
   })
 
+  it('canFinish is false for every event while a position of the build has no part fitted', () => {
+    const e = forecastEngine(parts, CALENDAR, { emptyPositions: 1 })
+    expect(e.canFinish.map((c) => [c.ok, c.reason])).toEqual(CALENDAR.map(() => [false, 'incomplete-build']))
+    // a part already over still reads first: it is the life figure that stops the engine
+    const over = forecastPart(makeUsage({ hours: 10.2 }), makeLimits({ hours: 10 }), cfg, CALENDAR, duty, OPTS)
+    const both = forecastEngine([...parts, { componentId: 14, forecast: over, immediateInspection: false }], CALENDAR, { emptyPositions: 2 })
+    expect(both.canFinish[0]?.reason).toBe('already-over')
+    expect(forecastEngine(parts, CALENDAR, { emptyPositions: 0 }).canFinish).toEqual(forecastEngine(parts, CALENDAR).canFinish)
+  })
+
   it('canFinish is false for every event when a part is flagged for immediate inspection', () => {
     const flagged = parts.map((p, i) => (i === 0 ? { ...p, immediateInspection: true } : p))
     const e = forecastEngine(flagged, CALENDAR)
