@@ -5,6 +5,7 @@ import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
 import { seedFleet } from './fleet'
 import { seedOil } from './oil'
+import { seedTeardowns } from './teardowns'
 
 export const DEMO_PASSWORD = 'ledger-demo-2026'
 
@@ -38,5 +39,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
     }
     await seedFleet(trx, { supplierId: supplierId!, teams, now })
     await seedOil(trx, { now })
+    await seedTeardowns(trx)
   })
 }
