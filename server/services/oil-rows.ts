@@ -83,6 +83,12 @@ function sampleInsertRow(engineId: number, s: OilSampleValues, extra: { lab: str
   }
 }
 
+/** The columns a correction may change: the figures and the lab, never the engine, the source or who entered it. */
+export function sampleUpdateRow(s: OilSampleValues, lab: string | null) {
+  const { engine_id: _e, source: _s, created_by: _c, ...row } = sampleInsertRow(0, s, { lab, source: 'form', createdBy: null })
+  return row
+}
+
 /** Inserts validated samples (used by the form, the import and the demo seed). */
 export async function insertSamples(trx: Knex.Transaction, rows: { engineId: number; values: OilSampleValues; lab: string | null; source: 'form' | 'csv' | 'seed' }[], createdBy: number | null): Promise<number[]> {
   const ids: number[] = []

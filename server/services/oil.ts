@@ -22,7 +22,7 @@ import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
 import { engineRowFor } from './fleet-scope'
 import { bumpLifeRevision } from './fleet-data'
-import { insertSamples, sampleValues, type SampleRow } from './oil-rows'
+import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from './oil-rows'
 
 type Db = Knex | Knex.Transaction
 
@@ -221,23 +221,45 @@ function sampleIssues(error: ZodError) {
 }
 
 /** Form entry of one sample. */
+/** The sample's figures checked against the engine (400 naming the field), and its lab number unique (409). */
+async function validSample(trx: Knex.Transaction, engine: { built_at: Date | string | null }, input: unknown, now: Date, exceptId?: number): Promise<OilSampleValues> {
+  const parsed = oilSampleSchema({ now, builtAt: engine.built_at ? new Date(engine.built_at) : null }).safeParse(input)
+  if (!parsed.success) {
+    const { message, issues } = zodMessage(parsed.error)
+    badRequest(message, { issues })
+  }
+  const values = parsed.data
+  const taken = trx('oil_samples').where('sample_id', values.sampleId)
+  if (exceptId !== undefined) taken.whereNot('id', exceptId)
+  if (await taken.first('id')) {
+    conflict(`sampleId: sample ${values.sampleId} is already recorded`, { issues: [{ path: 'sampleId', message: `sample ${values.sampleId} is already recorded` }] })
+  }
+  return values
+}
+
 export async function createOilSample(db: Knex, actor: Actor, engineId: number, lab: string | null, input: unknown, now = new Date()): Promise<OilSampleDto> {
   const id = await db.transaction(async (trx) => {
     // Oil status shows on the board, which is cached per life revision.
     await bumpLifeRevision(trx)
     const engine = await engineRowFor(trx, actor, engineId, { forUpdate: true })
-    const parsed = oilSampleSchema({ now, builtAt: engine.built_at ? new Date(engine.built_at) : null }).safeParse(input)
-    if (!parsed.success) {
-      const { message, issues } = zodMessage(parsed.error)
-      badRequest(message, { issues })
-    }
-    const values = parsed.data
-    if (await trx('oil_samples').where('sample_id', values.sampleId).first('id')) {
-      conflict(`sampleId: sample ${values.sampleId} is already recorded`, { issues: [{ path: 'sampleId', message: `sample ${values.sampleId} is already recorded` }] })
-    }
+    const values = await validSample(trx, engine, input, now)
     const [newId] = await insertSamples(trx, [{ engineId, values, lab, source: 'form' }], actor.id)
     await audit(trx, actor, { entity: 'oil_sample', entityId: newId!, action: 'create', after: { engineId, lab, ...values } })
     return newId!
+  })
+  return oilSample(db, actor, id)
+}
+
+/** Corrects a recorded sample (a typing slip, a lab's re-issued report); the engine stays, the change is audited. */
+export async function updateOilSample(db: Knex, actor: Actor, id: number, lab: string | null, input: unknown, now = new Date()): Promise<OilSampleDto> {
+  await db.transaction(async (trx) => {
+    // Oil status shows on the board, which is cached per life revision.
+    await bumpLifeRevision(trx)
+    const row = await sampleRowFor(trx, actor, id, { forUpdate: true })
+    const engine = await trx('engines').where('id', row.engine_id).first('built_at')
+    const values = await validSample(trx, engine, input, now, id)
+    await trx('oil_samples').where('id', id).update(sampleUpdateRow(values, lab))
+    await audit(trx, actor, { entity: 'oil_sample', entityId: id, action: 'update', before: { lab: row.lab, ...sampleValues(row) }, after: { lab, ...values } })
   })
   return oilSample(db, actor, id)
 }

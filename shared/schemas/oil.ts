@@ -39,6 +39,11 @@ export const OilSampleCreateSchema = z.looseObject({
   lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
 })
 
+/** Correction of a recorded sample: the lab, then the sample fields checked by oilSampleSchema on the server. */
+export const OilSampleUpdateSchema = z.looseObject({
+  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+})
+
 export const OilCsvMappingSchema = z.record(z.string().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
 
 export const OilImportSchema = z.object({

@@ -78,6 +78,42 @@ describe('entry by form', () => {
   })
 })
 
+describe('correcting a recorded sample', () => {
+  it('changes the figures, recomputes the status, keeps the engine and audits the change', async () => {
+    const id = sid('FIX')
+    const made = await post(raceB, { sampleId: id, sampledAt: at(4), engineHours: 5, elements: { Fe: 9 }, kv40: 90, kv100: 14.0 })
+    expect(made.status, JSON.stringify(made.body)).toBe(201)
+    // a typing slip: the lab reported Fe 90 ppm, not 9, and 15.0 mm²/s at 100 C
+    const fixed = await raceB.put(`/api/oil/samples/${made.body.id}`, { lab: 'Second lab', sampleId: id, sampledAt: at(4), engineHours: 5, elements: { Fe: 90 }, kv40: 90, kv100: 15.0 })
+    expect(fixed.status, JSON.stringify(fixed.body)).toBe(200)
+    expect(fixed.body).toMatchObject({ id: made.body.id, engineId: spare.id, lab: 'Second lab', elements: { Fe: 90 }, kv100: 15 })
+    // derived figures follow the corrected readings
+    expect(made.body.viscosityIndex).toBe(160)
+    expect(fixed.body.viscosityIndex).toBeGreaterThan(160)
+    const row = await samplesWith([id]).first()
+    expect([row.engine_id, row.source, Number(row.kv100)]).toEqual([spare.id, 'form', 15])
+    const audit = await db()('audit_log').where({ entity: 'oil_sample', entity_id: String(made.body.id), action: 'update' }).first()
+    const parse = (v: any) => (typeof v === 'string' ? JSON.parse(v) : v)
+    expect(parse(audit.before_value).elements).toEqual({ Fe: 9 })
+    expect(parse(audit.after_value).elements).toEqual({ Fe: 90 })
+  })
+
+  it('refuses a bad figure naming the field, a lab number already taken, and another team, changing nothing', async () => {
+    const id = sid('FIX2')
+    const made = await post(raceB, { sampleId: id, sampledAt: at(5), kv40: 90, kv100: 14.0 })
+    expect(made.status).toBe(201)
+    const url = `/api/oil/samples/${made.body.id}`
+    const thin = await raceB.put(url, { sampleId: id, sampledAt: at(5), kv40: 14, kv100: 14 })
+    expect([thin.status, thin.body.message]).toEqual([400, expect.stringContaining('kv100')])
+    const seeded = await db()('oil_samples').where('engine_id', kv1202).first()
+    const dup = await raceB.put(url, { sampleId: seeded.sample_id, sampledAt: at(5) })
+    expect([dup.status, dup.body.message]).toEqual([409, expect.stringContaining('sampleId')])
+    expect((await managerA.put(url, { sampleId: id, sampledAt: at(5), kv40: 80, kv100: 12 })).status).toBe(404)
+    const row = await samplesWith([id]).first()
+    expect([Number(row.kv40), Number(row.kv100)]).toEqual([90, 14])
+  })
+})
+
 describe('lab CSV import', () => {
   const HEADER = 'Unit ID,Sample No,Date Sampled,Unit Hours,Oil Hours,Fe ppm,Cu ppm,Visc 40C,Visc 100C,Remarks'
   const MAPPING = {
