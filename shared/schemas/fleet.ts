@@ -28,6 +28,21 @@ export const EngineTypeUpdateSchema = z
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')
   .refine((v) => !v.overRevBands || new Set(v.overRevBands.map((b) => b.id)).size === v.overRevBands.length, { message: 'band ids must be unique', path: ['overRevBands'] })
 
+export const CharacteristicSchema = z.object({
+  key: z.string().trim().regex(/^[a-z0-9_]{1,40}$/, 'use lower-case letters, digits and _'),
+  label: z.string().trim().min(2).max(80),
+  unit: z.enum(['mm', 'um', 'N', 'N*m', 'deg', '%', 'bar', 'kg', 'g']),
+  nominal: z.number(),
+  min: z.number(),
+  max: z.number(),
+}).refine((c) => c.min <= c.nominal && c.nominal <= c.max, { message: 'needs min <= nominal <= max', path: ['nominal'] })
+
+/** Measured characteristics of a part type; keys name the readings, so they are unique. */
+const CharacteristicsSchema = z
+  .array(CharacteristicSchema)
+  .max(40)
+  .refine((list) => new Set(list.map((c) => c.key)).size === list.length, 'each key only once')
+
 export const ComponentTypeUpdateSchema = z
   .object({
     name: z.string().trim().min(2).max(120),
@@ -39,19 +54,11 @@ export const ComponentTypeUpdateSchema = z
     warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
     dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
     damageExponent: z.number().min(0).max(40),
+    characteristics: CharacteristicsSchema,
   })
   .partial()
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')
   .refine((v) => v.warningLevel === undefined || v.dueLevel === undefined || v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
-
-export const CharacteristicSchema = z.object({
-  key: z.string().trim().regex(/^[a-z0-9_]{1,40}$/, 'use lower-case letters, digits and _'),
-  label: z.string().trim().min(2).max(80),
-  unit: z.enum(['mm', 'um', 'N', 'N*m', 'deg', '%', 'bar', 'kg', 'g']),
-  nominal: z.number(),
-  min: z.number(),
-  max: z.number(),
-}).refine((c) => c.min <= c.nominal && c.nominal <= c.max, { message: 'needs min <= nominal <= max', path: ['nominal'] })
 
 export const ComponentTypeCreateSchema = z.object({
   code: z.string().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
@@ -65,7 +72,7 @@ export const ComponentTypeCreateSchema = z.object({
   warningLevel: z.number().gt(0).lt(1).default(0.8),
   dueLevel: z.number().gt(0).lt(1).default(0.9),
   damageExponent: z.number().min(0).max(40).default(0),
-  characteristics: z.array(CharacteristicSchema).max(40).default([]),
+  characteristics: CharacteristicsSchema.default([]),
 }).refine((v) => v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
   .refine((v) => v.limitHours !== null || v.limitKm !== null || v.limitEqHours !== null || Object.keys(v.limitOverRev).length > 0, { message: 'a life-limited part needs at least one limit', path: ['limitHours'] })
 

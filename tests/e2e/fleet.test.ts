@@ -118,6 +118,30 @@ describe('life accounting through the API', () => {
     expect((await supplier.patch(`/api/component-types/${ct.id}`, { limitHours: 57 })).status).toBe(200)
   })
 
+  it('edits a part type\'s measured characteristics, but keeps those already read at teardowns', async () => {
+    // KV8-1202's demo teardowns read the valve springs' free length.
+    const ct = await db()('component_types').where('code', 'KV8-VSP').first()
+    const original = (typeof ct.characteristics === 'string' ? JSON.parse(ct.characteristics) : ct.characteristics) as any[]
+    expect(original.map((c) => c.key)).toEqual(['spring_free_length'])
+    const url = `/api/component-types/${ct.id}`
+    try {
+      const installed = { key: 'installed_load', label: 'Installed load', unit: 'N', nominal: 420, min: 400, max: 440 }
+      const widened = await supplier.patch(url, { characteristics: [{ ...original[0], min: 41.5 }, installed] })
+      expect(widened.status, JSON.stringify(widened.body)).toBe(200)
+      expect(widened.body.characteristics).toEqual([{ ...original[0], min: 41.5 }, installed])
+      const dropped = await supplier.patch(url, { characteristics: [installed] })
+      expect([dropped.status, dropped.body.message]).toEqual([409, expect.stringMatching(/spring_free_length \(\d+ readings\) already recorded/)])
+      const reunited = await supplier.patch(url, { characteristics: [{ ...original[0], unit: 'um' }] })
+      expect(reunited.status).toBe(409)
+      const twice = await supplier.patch(url, { characteristics: [installed, installed] })
+      expect([twice.status, twice.body.message]).toEqual([400, expect.stringContaining('each key only once')])
+      const inverted = await supplier.patch(url, { characteristics: [{ ...installed, min: 450 }] })
+      expect([inverted.status, inverted.body.message]).toEqual([400, expect.stringContaining('min <= nominal <= max')])
+    } finally {
+      expect((await supplier.patch(url, { characteristics: original })).status).toBe(200)
+    }
+  })
+
   it('feeds a planned running time into "can this engine run the event to the end?"', async () => {
     const id = await engineId('KV8-1202')
     const engine = (await supplier.get(`/api/engines/${id}`)).body
