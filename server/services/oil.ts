@@ -220,7 +220,6 @@ function sampleIssues(error: ZodError) {
   return zodMessage(error).issues
 }
 
-/** Form entry of one sample. */
 /** The sample's figures checked against the engine (400 naming the field), and its lab number unique (409). */
 async function validSample(trx: Knex.Transaction, engine: { built_at: Date | string | null }, input: unknown, now: Date, exceptId?: number): Promise<OilSampleValues> {
   const parsed = oilSampleSchema({ now, builtAt: engine.built_at ? new Date(engine.built_at) : null }).safeParse(input)
@@ -237,6 +236,7 @@ async function validSample(trx: Knex.Transaction, engine: { built_at: Date | str
   return values
 }
 
+/** Form entry of one sample. */
 export async function createOilSample(db: Knex, actor: Actor, engineId: number, lab: string | null, input: unknown, now = new Date()): Promise<OilSampleDto> {
   const id = await db.transaction(async (trx) => {
     // Oil status shows on the board, which is cached per life revision.
