@@ -13,7 +13,7 @@ async function isEmpty() {
 }
 
 async function dropAll() {
-  const rows: [{ TABLE_NAME: string }[]] = await knex.raw('SELECT TABLE_NAME FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')
+  const rows = (await knex.raw('SELECT TABLE_NAME FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')) as [{ TABLE_NAME: string }[]]
   await knex.raw('SET FOREIGN_KEY_CHECKS = 0')
   for (const { TABLE_NAME } of rows[0]) await knex.raw('DROP TABLE IF EXISTS ??', [TABLE_NAME])
   await knex.raw('SET FOREIGN_KEY_CHECKS = 1')

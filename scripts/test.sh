@@ -33,6 +33,9 @@ rm -rf "$NUXT_STORAGE_DIR"
 rm -rf "$root/.data-test/maildev"
 start_maildev "$NUXT_SMTP_PORT" "$CL_MAILDEV_WEB" "$root/.data-test/maildev"
 
+say "type-checking (vue-tsc: pages, components, server, tests)"
+npx nuxt typecheck
+
 say "building the app for the end-to-end tests"
 npx nuxt build > "$root/.data-test/build.log" 2>&1 || { tail -60 "$root/.data-test/build.log"; exit 1; }
 

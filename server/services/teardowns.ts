@@ -386,7 +386,8 @@ export async function listTeardowns(db: Knex, actor: Actor, q: { state?: string;
   const rows = await qb
   const ids = rows.map((r) => r.id).concat([0])
   const counts = new Map<number, { measured: number; outOfTolerance: number }>()
-  for (const m of await db('teardown_measurements').whereIn('teardown_id', ids).select('teardown_id').count({ n: '*' }).sum({ out: db.raw("verdict <> 'in'") }).groupBy('teardown_id')) {
+  const perTeardown = (await db('teardown_measurements').whereIn('teardown_id', ids).select('teardown_id').count({ n: '*' }).sum({ out: db.raw("verdict <> 'in'") }).groupBy('teardown_id')) as unknown as { teardown_id: number; n: number | string; out: number | string }[]
+  for (const m of perTeardown) {
     counts.set(m.teardown_id, { measured: Number(m.n), outOfTolerance: Number(m.out) })
   }
   const findings = new Map((await db('teardown_findings').whereIn('teardown_id', ids).select('teardown_id').count({ n: '*' }).groupBy('teardown_id')).map((r: any) => [r.teardown_id, Number(r.n)]))

@@ -47,7 +47,7 @@ async function upload(client: Client, body: string | Buffer, params: Record<stri
     mapping: JSON.stringify(MAPPING),
     ...Object.fromEntries(Object.entries(params).map(([k, v]) => [k, v === null ? '' : String(v)])),
   })
-  const res = await fetch(`${BASE}/api/imports?${q}`, { method: 'POST', headers: { cookie: client.cookie, 'content-type': 'text/csv', origin: BASE }, body })
+  const res = await fetch(`${BASE}/api/imports?${q}`, { method: 'POST', headers: { cookie: client.cookie, 'content-type': 'text/csv', origin: BASE }, body: typeof body === 'string' ? body : new Uint8Array(body) })
   return { status: res.status, body: await res.json() }
 }
 

@@ -25,7 +25,7 @@ async function newSpare(typeCode: string) {
 }
 async function upload(client: Client, path: string, bytes: Uint8Array, name: string, type: string) {
   const form = new FormData()
-  form.append('file', new Blob([bytes], { type }), name)
+  form.append('file', new Blob([new Uint8Array(bytes)], { type }), name)
   return client.request('POST', path, form)
 }
 function filesIn(dir: string): number {

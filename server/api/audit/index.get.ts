@@ -23,7 +23,7 @@ export default defineEventHandler(async (event) => {
   if (q.userId) base.where('a.user_id', q.userId)
   if (q.from) base.where('a.at', '>=', new Date(`${q.from}T00:00:00Z`))
   if (q.to) base.where('a.at', '<', new Date(new Date(`${q.to}T00:00:00Z`).getTime() + 86_400_000))
-  const [{ n }] = await base.clone().count({ n: '*' })
+  const n = (await base.clone().count({ n: '*' }).first())?.n ?? 0
   const rows = await base
     .clone()
     .select('a.*', 'u.name as user_name', 'o.name as org_name')

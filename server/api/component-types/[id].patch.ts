@@ -38,7 +38,7 @@ export default defineEventHandler(async (event) => {
 async function keepRecordedReadings(trx: Knex.Transaction, typeId: number, before: { key: string; unit: string }[], after: { key: string; unit: string }[]) {
   const changed = before.filter((b) => after.find((a) => a.key === b.key)?.unit !== b.unit)
   if (!changed.length) return
-  const used = await trx('teardown_measurements as m')
+  const used: { key: string; n: number | string }[] = await trx('teardown_measurements as m')
     .join('components as c', 'c.id', 'm.component_id')
     .where('c.component_type_id', typeId)
     .whereIn('m.characteristic_key', changed.map((c) => c.key))

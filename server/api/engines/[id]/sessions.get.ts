@@ -18,7 +18,7 @@ export default defineEventHandler(async (event) => {
   const db = useDb()
   await engineRowFor(db, actor, id)
   const base = db('sessions as s').where('s.engine_id', id)
-  const [{ n }] = await base.clone().count({ n: '*' })
+  const n = (await base.clone().count({ n: '*' }).first())?.n ?? 0
   const rows = await base
     .clone()
     .join('engines as e', 'e.id', 's.engine_id')
