@@ -3,6 +3,7 @@
 // reports and the fleet findings have something to show. Rates and findings are invented.
 import type { Knex } from 'knex'
 import { judge, type Characteristic } from '../../shared/domain/teardown'
+import { json } from '../../server/utils/db'
 import { rng } from './fleet'
 
 const DAY = 86_400_000
@@ -60,7 +61,7 @@ export async function seedTeardowns(trx: Knex.Transaction) {
         note: `Scheduled inspection after round ${round}`,
       })
       for (const p of parts) {
-        const chars = (typeof p.characteristics === 'string' ? JSON.parse(p.characteristics) : p.characteristics) as Characteristic[]
+        const chars = json<Characteristic[]>(p.characteristics, [])
         for (const c of chars) {
           const scatter = (rand() - 0.5) * 0.1 * (c.max - c.min)
           const value = Number((c.nominal + (WEAR_PER_HOUR[c.key] ?? 0) * pace.get(p.component_id)! * hours + scatter).toFixed(4))
