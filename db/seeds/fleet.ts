@@ -2,6 +2,8 @@
 // thirteen engines spread from fresh to due, past sessions with rev histograms, and a calendar
 // with a 12-hour race still to come. Every name here is invented.
 import type { Knex } from 'knex'
+import { encodeMoments, type RpmMoments } from '../../shared/domain/rpm-moments'
+import { syntheticTrace, type PlannedExcursion } from './traces'
 
 /** Small deterministic PRNG (mulberry32), so every run writes the same demo and bench data. */
 export function rng(seed: number) {
@@ -159,6 +161,14 @@ export function makeHistogram(t: Pick<SeedEngineType, 'rev_limit_rpm' | 'idle_rp
 }
 
 const DAY = 86_400_000
+/** Demo sessions come from invented traces read by the trace analyzer; no raw file is kept for them. */
+export const SYNTHETIC_FILE_NAME = 'invented demo trace (raw file not kept)'
+const round3 = (x: number) => Math.round(x * 1000) / 1000
+
+export function momentsBlob(m: RpmMoments): Buffer {
+  const bytes = encodeMoments(m)
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)
+}
 
 export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number; teams: Record<string, number>; now: Date }) {
   const rand = rng(20261202)
@@ -308,13 +318,18 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
       for (let k = 0; k < kinds.length; k++) {
         const s = kinds[k]!
         const seconds = Math.round(s.hours * 3600 * (0.9 + rand() * 0.2))
-        const histogram = makeHistogram(t, seconds, rand, s.kind === 'qualifying' ? 1.4 : 1)
-        const overRevs: { bandId: string; peakRpm: number; durationS: number; startS: number }[] = []
-        if (rand() < 0.25) overRevs.push({ bandId: 'A', peakRpm: t.over_rev_bands[0]!.minRpm + 60, durationS: 0.4, startS: Math.round(rand() * seconds) })
+        const excursions: PlannedExcursion[] = []
+        if (rand() < 0.25) excursions.push({ at: rand() * 0.95, peakRpm: t.over_rev_bands[0]!.minRpm + 60, holdS: 0.4 })
         if (f.overRevC && round === 7 && s.kind === 'race') {
           // A missed downshift in the last race: straight into the teardown band.
-          overRevs.push({ bandId: 'C', peakRpm: t.over_rev_bands[2]!.minRpm + 180, durationS: 0.35, startS: Math.round(seconds * 0.62) })
+          excursions.push({ at: 0.62, peakRpm: t.over_rev_bands[2]!.minRpm + 180, holdS: 0.35 })
         }
+        if (f.serial === 'KT4-2101' && round === 7 && s.kind === 'qualifying') {
+          // A flick past the inspection threshold inside a longer logged excursion: one event, logged.
+          excursions.push({ at: 0.5, peakRpm: t.over_rev_bands[0]!.minRpm + 40, holdS: 0.6, spike: { rpm: t.over_rev_bands[1]!.minRpm + 60, seconds: 0.05 } })
+        }
+        const trace = syntheticTrace(t, seconds, rand, { intensity: s.kind === 'qualifying' ? 1.4 : 1, excursions })
+        const overRevs = trace.overRevs
         const startedAt = new Date(ev.startsAt + s.day * DAY + (k % 2) * 4 * 3600_000)
         await trx('sessions').insert({
           engine_id: engineId,
@@ -322,18 +337,20 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           event_id: ev.id,
           kind: s.kind,
           started_at: startedAt,
-          running_seconds: seconds,
-          distance_km: Math.round((seconds / 3600) * t.avgSpeedKmh * (0.95 + rand() * 0.1) * 10) / 10,
+          running_seconds: round3(trace.runningSeconds),
+          distance_km: Math.round((trace.runningSeconds / 3600) * t.avgSpeedKmh * (0.95 + rand() * 0.1) * 10) / 10,
           band_width_rpm: t.band_width_rpm,
-          histogram: JSON.stringify(histogram),
+          histogram: JSON.stringify(trace.histogram),
+          rpm_moments: momentsBlob(trace.rpmMoments),
           over_revs: JSON.stringify(overRevs),
           low_oil_pressure: JSON.stringify([]),
-          max_rpm: Math.max(t.rev_limit_rpm - 40, ...overRevs.map((o) => o.peakRpm)),
+          max_rpm: Math.round(trace.maxRpm),
           max_oil_temp_c: Math.round((118 + rand() * 14) * 10) / 10,
           max_water_temp_c: Math.round((96 + rand() * 10) * 10) / 10,
           max_speed_kmh: Math.round((t.avgSpeedKmh * 1.75 + rand() * 15) * 10) / 10,
           min_oil_pressure_bar: Math.round((2.6 + rand() * 0.8) * 100) / 100,
-          source: 'manual',
+          source: 'logger',
+          file_name: SYNTHETIC_FILE_NAME,
         })
       }
     }
@@ -359,21 +376,23 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
     // Its sessions in KV8-1001 before the move: two bench runs.
     const t = ENGINE_TYPES[0]!
     for (const [d, hours] of [[-40, 6], [-25, 7]] as const) {
-      const seconds = hours * 3600
+      const trace = syntheticTrace(t, hours * 3600, rand, { intensity: 1.2 })
       await trx('sessions').insert({
         engine_id: kv1001,
         team_id: null,
         event_id: null,
         kind: 'bench',
         started_at: new Date(swapAt.getTime() + d * DAY),
-        running_seconds: seconds,
+        running_seconds: round3(trace.runningSeconds),
         distance_km: 0,
         band_width_rpm: t.band_width_rpm,
-        histogram: JSON.stringify(makeHistogram(t, seconds, rand, 1.2)),
-        over_revs: JSON.stringify([]),
+        histogram: JSON.stringify(trace.histogram),
+        rpm_moments: momentsBlob(trace.rpmMoments),
+        over_revs: JSON.stringify(trace.overRevs),
         low_oil_pressure: JSON.stringify([]),
-        max_rpm: t.rev_limit_rpm - 100,
-        source: 'manual',
+        max_rpm: Math.round(trace.maxRpm),
+        source: 'logger',
+        file_name: SYNTHETIC_FILE_NAME,
       })
     }
   }

@@ -3,6 +3,7 @@
 import type { Knex } from 'knex'
 import type { ComponentLimits, EngineSession, EngineTypeLifeConfig, Installation, OverRevBand } from '#shared/domain/life'
 import { engineTypeSheet } from '#shared/domain/kinematics'
+import { decodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
 import type { ComponentTypeDto, EngineTypeDto, EventDto, SessionDto } from '#shared/types/fleet'
 import { iso, json, num, numOrNull } from '../utils/db'
 
@@ -64,7 +65,7 @@ export function toComponentType(r: any): ComponentTypeDto {
 }
 
 export function lifeConfig(t: EngineTypeDto): EngineTypeLifeConfig {
-  return { referenceRpm: t.referenceRpm, bandWidthRpm: t.bandWidthRpm, overRevBands: [...t.overRevBands].sort((a, b) => a.minRpm - b.minRpm) }
+  return { referenceRpm: t.referenceRpm, revLimitRpm: t.revLimitRpm, bandWidthRpm: t.bandWidthRpm, overRevBands: [...t.overRevBands].sort((a, b) => a.minRpm - b.minRpm) }
 }
 
 export function limitsOf(c: ComponentTypeDto): ComponentLimits {
@@ -108,12 +109,18 @@ export function toEngineSession(r: any): EngineSession & { bandWidthRpm: number;
     runningSeconds: num(r.running_seconds),
     distanceKm: num(r.distance_km),
     histogram: json<number[]>(r.histogram, []),
+    rpmMoments: momentsOf(r.rpm_moments),
     overRevs: json(r.over_revs, []),
     bandWidthRpm: r.band_width_rpm,
   }
 }
 
-export const SESSION_LIFE_COLUMNS = ['id', 'engine_id', 'event_id', 'started_at', 'running_seconds', 'distance_km', 'histogram', 'over_revs', 'band_width_rpm']
+export function momentsOf(v: unknown): RpmMoments | null {
+  if (v === null || v === undefined) return null
+  return decodeMoments(v as Uint8Array)
+}
+
+export const SESSION_LIFE_COLUMNS = ['id', 'engine_id', 'event_id', 'started_at', 'running_seconds', 'distance_km', 'histogram', 'rpm_moments', 'over_revs', 'band_width_rpm']
 
 export function toSessionDto(r: any): SessionDto {
   return {

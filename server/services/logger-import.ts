@@ -12,7 +12,7 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
-import { checkSession, insertSession, sessionById } from './sessions'
+import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
 import { engineRowFor } from './fleet-scope'
 
@@ -91,6 +91,7 @@ function sessionFields(r: LoggerImportResult) {
     histogram: s.histogram,
     overRevs: s.overRevs,
     extras: {
+      rpmMoments: s.rpmMoments,
       lowOilPressure: s.lowOilPressure,
       maxRpm: Math.round(s.maxRpm),
       maxOilTempC: s.maxOilTempC,
@@ -166,6 +167,38 @@ export async function reprocessSession(db: Knex, actor: Actor, sessionId: number
   const row = await sessionById(db, sessionId)
   if (!row) notFound('Session')
   await engineRowFor(db, actor, row.engine_id)
+  return reprocessStoredFile(db, actor, row, maxBytes)
+}
+
+/**
+ * Sessions stored before rpm moments were kept are read again from their kept raw files, once,
+ * so that their equivalent hours become exact. Runs at start on one instance (named lock);
+ * audited as the system. A session whose file cannot be read stays as it was and is reported.
+ */
+export async function reprocessSessionsWithoutMoments(db: Knex, maxBytes: number, log: (m: string) => void) {
+  const [[lock]] = await db.raw("SELECT GET_LOCK('crankledger-exact-life', 0) AS ok")
+  if (Number(lock?.ok) !== 1) return { done: 0, failed: 0 }
+  let done = 0
+  let failed = 0
+  try {
+    const ids: number[] = (await db('sessions').where('source', 'logger').whereNull('rpm_moments').whereNotNull('file_key').orderBy('id').pluck('id'))
+    for (const id of ids) {
+      try {
+        await reprocessStoredFile(db, null, await sessionById(db, id), maxBytes)
+        done++
+      } catch (e: any) {
+        failed++
+        log(`session ${id} keeps its band figures: ${e?.message ?? e}`)
+      }
+    }
+  } finally {
+    await db.raw("SELECT RELEASE_LOCK('crankledger-exact-life')")
+  }
+  return { done, failed }
+}
+
+async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxBytes: number) {
+  const sessionId: number = row.id
   if (row.source !== 'logger' || !row.file_key) badRequest('Only sessions imported from a logger file can be re-processed')
   const raw = await getFile(row.file_key)
   if (!raw) conflict('The stored logger file is missing; the session cannot be re-processed')
@@ -191,6 +224,7 @@ export async function reprocessSession(db: Knex, actor: Actor, sessionId: number
       distance_km: f.distanceKm,
       band_width_rpm: type!.bandWidthRpm,
       histogram: JSON.stringify(f.histogram),
+      rpm_moments: momentsColumn(f.extras.rpmMoments),
       over_revs: JSON.stringify(f.overRevs),
       low_oil_pressure: JSON.stringify(f.extras.lowOilPressure),
       max_rpm: f.extras.maxRpm,

@@ -1,6 +1,7 @@
 // Storing a session (manual entry or logger import): checks against the engine type, one transaction, audited.
 import type { Knex } from 'knex'
 import type { ManualSessionInput } from '#shared/schemas/fleet'
+import { encodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
 import type { Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
@@ -9,6 +10,8 @@ import { engineRowFor } from './fleet-scope'
 import { triggerLifeCheck } from '../utils/alerts'
 
 export interface SessionExtras {
+  /** exact equivalent hours for any exponent (sessions read from a logger file) */
+  rpmMoments?: RpmMoments | null
   lowOilPressure?: { startS: number; durationS: number; minBar: number }[]
   maxRpm?: number | null
   maxOilTempC?: number | null
@@ -64,6 +67,7 @@ export async function insertSession(trx: Knex.Transaction, actor: Actor, input: 
     distance_km: input.distanceKm,
     band_width_rpm: type.bandWidthRpm,
     histogram: JSON.stringify(input.histogram),
+    rpm_moments: momentsColumn(extras.rpmMoments),
     over_revs: JSON.stringify(input.overRevs),
     low_oil_pressure: JSON.stringify(extras.lowOilPressure ?? []),
     max_rpm: extras.maxRpm ?? (input.overRevs.length ? Math.max(...input.overRevs.map((o) => o.peakRpm)) : null),
@@ -86,6 +90,12 @@ export async function insertSession(trx: Knex.Transaction, actor: Actor, input: 
   })
   await bumpLifeRevision(trx)
   return id!
+}
+
+export function momentsColumn(m: RpmMoments | null | undefined): Buffer | null {
+  if (!m) return null
+  const bytes = encodeMoments(m)
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)
 }
 
 export async function sessionById(db: Knex | Knex.Transaction, id: number) {

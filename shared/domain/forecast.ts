@@ -2,8 +2,8 @@
 // an aid to planning, never a substitute for the supplier's service instructions and inspection.
 
 import {
-  bandMidRpm,
   evaluatePartLife,
+  sessionEquivalentHours,
   type ComponentLimits,
   type EngineTypeLifeConfig,
   type LifeStatus,
@@ -20,8 +20,10 @@ export interface PlannedEvent {
 }
 
 export interface EngineDuty {
-  /** fraction of running time per band over recent sessions, sums to 1, or [] when none */
-  histogramShare: number[]
+  /** the recent sessions the duty is read from (their running time, histogram and rpm moments) */
+  recent: SessionUsage[]
+  /** running seconds of the recent sessions; 0 when none ran */
+  runningSeconds: number
   kmPerHour: number | null
   overRevsPerHour: Record<string, number>
 }
@@ -35,7 +37,7 @@ export interface PartForecast {
   warningAt: EventRef | null
   limitAt: EventRef | null
   fractionAfter: { eventId: number; fraction: number; status: LifeStatus }[]
-  /** true when no recent histogram was known and running was assumed at the reference rpm */
+  /** true when no recent running was known and the engine was assumed at its rev limit throughout (the worst case) */
   assumedDuty: boolean
 }
 
@@ -72,35 +74,31 @@ export function recentDuty(sessions: SessionUsage[], lastN: number): EngineDuty 
   const recent = [...sessions]
     .sort((a, b) => timeOf(b.at) - timeOf(a.at) || b.sessionId - a.sessionId)
     .slice(0, Math.max(0, Math.floor(lastN)))
-  const bandSeconds: number[] = []
   let runningSeconds = 0
   let km = 0
   const overRevs: Record<string, number> = {}
   for (const s of recent) {
-    s.histogram.forEach((sec, i) => {
-      bandSeconds[i] = (bandSeconds[i] ?? 0) + sec
-    })
     runningSeconds += s.runningSeconds
     km += s.distanceKm
     for (const ev of s.overRevs) overRevs[ev.bandId] = (overRevs[ev.bandId] ?? 0) + 1
   }
-  const histogramTotal = bandSeconds.reduce((t, x) => t + (x ?? 0), 0)
-  const histogramShare = histogramTotal > 0 ? Array.from(bandSeconds, (x) => (x ?? 0) / histogramTotal) : []
   const hours = runningSeconds / SECONDS_PER_HOUR
   const overRevsPerHour: Record<string, number> = {}
   if (hours > 0) for (const [id, n] of Object.entries(overRevs)) overRevsPerHour[id] = n / hours
-  return { histogramShare, kmPerHour: hours > 0 ? km / hours : null, overRevsPerHour }
+  return { recent: runningSeconds > 0 ? recent : [], runningSeconds, kmPerHour: hours > 0 ? km / hours : null, overRevsPerHour }
 }
 
-/** Equivalent hours per running hour; 1 when no duty is known (running at the reference rpm assumed). */
+/**
+ * Equivalent hours per running hour of the recent sessions, evaluated as each session's own
+ * equivalent hours (exact from rpm moments). With no recent running the rate is the engine
+ * type's worst case, steady running at the rev limit: (rev limit / reference rpm)^p, so a
+ * projection never assumes an easier duty than the engine can run.
+ */
 export function eqPerRunningHour(duty: EngineDuty, cfg: EngineTypeLifeConfig, exponent: number): number {
-  if (duty.histogramShare.length === 0) return 1
-  let rate = 0
-  duty.histogramShare.forEach((share, i) => {
-    if (share === 0) return
-    rate += share * Math.pow(bandMidRpm(i, cfg.bandWidthRpm) / cfg.referenceRpm, exponent)
-  })
-  return rate
+  if (duty.runningSeconds <= 0) return Math.pow(cfg.revLimitRpm / cfg.referenceRpm, exponent)
+  let eq = 0
+  for (const s of duty.recent) eq += sessionEquivalentHours(s, cfg, exponent)
+  return eq / (duty.runningSeconds / SECONDS_PER_HOUR)
 }
 
 /**
@@ -163,7 +161,7 @@ export function forecastPart(
     limitAt,
     dueAt,
     fractionAfter,
-    assumedDuty: duty.histogramShare.length === 0,
+    assumedDuty: duty.runningSeconds <= 0,
     alreadyWarning,
     alreadyDue,
     alreadyOver,

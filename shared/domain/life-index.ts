@@ -4,7 +4,7 @@
 // the window's sessions (tested), which stays the reference definition.
 import {
   addSession,
-  equivalentHours,
+  sessionEquivalentHours,
   type AccumulateOptions,
   type ComponentLimits,
   type EngineTypeLifeConfig,
@@ -12,7 +12,7 @@ import {
   type SessionUsage,
 } from './life'
 
-export type IndexedSession = SessionUsage & { bandWidthRpm?: number }
+export type IndexedSession = SessionUsage
 
 export interface UsageIndex {
   /** Index of the first session at or after time t (ms), in time order. */
@@ -39,14 +39,13 @@ export function createUsageIndex(sessionsInOrder: IndexedSession[], cfg: EngineT
     if (s.overRevs.length > 0) withOverRevs.push(i)
   }
   const eqByExponent = new Map<number, Float64Array>()
-  const cfgFor = (s: IndexedSession) => (s.bandWidthRpm === undefined || s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm })
   const eqPrefix = (p: number) => {
     let prefix = eqByExponent.get(p)
     if (!prefix) {
       prefix = new Float64Array(n + 1)
       for (let i = 0; i < n; i++) {
         const s = sessionsInOrder[i]!
-        prefix[i + 1] = prefix[i]! + equivalentHours(s.histogram, cfgFor(s), p)
+        prefix[i + 1] = prefix[i]! + sessionEquivalentHours(s, cfg, p)
       }
       eqByExponent.set(p, prefix)
     }
@@ -72,7 +71,7 @@ export function createUsageIndex(sessionsInOrder: IndexedSession[], cfg: EngineT
       for (const i of withOverRevs) {
         if (i < from || i >= to) continue
         const s = sessionsInOrder[i]!
-        overRevs = addSession(overRevs, { ...s, runningSeconds: 0, distanceKm: 0, histogram: [] }, cfgFor(s), limits, opts)
+        overRevs = addSession(overRevs, { ...s, runningSeconds: 0, distanceKm: 0, histogram: [], rpmMoments: null }, cfg, limits, opts)
       }
       return {
         hours: hours[to]! - hours[from]!,

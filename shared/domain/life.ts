@@ -2,23 +2,24 @@
 // Pure: no clock, no I/O. Every figure here is an aid to the supplier's service
 // instructions, inspection and licensed practice, never a substitute for them.
 
+import type { OverRevBandRule, OverRevEvent } from './over-rev'
+import { equivalentHoursFromMoments, type RpmMoments } from './rpm-moments'
+
+export type { OverRevEvent }
+
 export type LimitKind = 'hours' | 'km' | 'eqHours' | 'overRev'
 
 // ok: below warningLevel; warning: >= warningLevel (plan the rebuild);
 // due: >= dueLevel (rebuild due, plan teardown now); over: >= 1.0 (limit reached, must not run)
 export type LifeStatus = 'ok' | 'warning' | 'due' | 'over'
 
-export interface OverRevBand {
-  id: string
-  label: string
-  minRpm: number
-  minDurationS: number
-  hysteresisRpm: number
-}
+export type OverRevBand = OverRevBandRule
 
 /** overRevBands sorted ascending by minRpm */
 export interface EngineTypeLifeConfig {
   referenceRpm: number
+  /** the worst steady duty the engine type allows: the forecast's rate when no duty is known */
+  revLimitRpm: number
   bandWidthRpm: number
   overRevBands: OverRevBand[]
 }
@@ -37,21 +38,23 @@ export interface ComponentLimits {
   damageExponent: number
 }
 
-export interface OverRevEvent {
-  bandId: string
-  peakRpm: number
-  durationS: number
-  startS: number
-}
-
 export interface SessionUsage {
   sessionId: number
   /** ISO date-time of the session */
   at: string
   runningSeconds: number
   distanceKm: number
-  /** seconds per rpm band; band i covers [i*bandWidth, (i+1)*bandWidth), evaluated at its midpoint */
+  /** seconds per rpm band; band i covers [i*bandWidth, (i+1)*bandWidth) */
   histogram: number[]
+  /** the band width the histogram was binned with, when it differs from the engine type's today */
+  bandWidthRpm?: number
+  /**
+   * Running time by ln(rpm) moments (sessions read from a logger file): equivalent hours exact to
+   * their definition. Without them (a session entered by hand) the histogram is evaluated at band
+   * midpoints, an approximation the session page marks.
+   */
+  rpmMoments?: RpmMoments | null
+  /** with the verdict (bandId) decided when the session was read; life counts it as stored */
   overRevs: OverRevEvent[]
 }
 
@@ -144,13 +147,27 @@ export function equivalentHoursFromBands(
   return total
 }
 
-/** Equivalent hours at the reference rpm from a histogram in seconds per band. */
-export function equivalentHours(histogramSeconds: number[], cfg: EngineTypeLifeConfig, exponent: number): number {
+/**
+ * Equivalent hours at the reference rpm from a histogram in seconds per band, evaluated at band
+ * midpoints: an approximation (off by tens of per cent at high exponents), used only for sessions
+ * that have no rpm moments.
+ */
+export function equivalentHoursAtBandMidpoints(histogramSeconds: number[], bandWidthRpm: number, referenceRpm: number, exponent: number): number {
   return equivalentHoursFromBands(
-    histogramSeconds.map((s, i) => ({ rpm: bandMidRpm(i, cfg.bandWidthRpm), hours: s / SECONDS_PER_HOUR })),
-    cfg.referenceRpm,
+    histogramSeconds.map((s, i) => ({ rpm: bandMidRpm(i, bandWidthRpm), hours: s / SECONDS_PER_HOUR })),
+    referenceRpm,
     exponent,
   )
+}
+
+/** A session's equivalent hours: exact from its rpm moments, else approximate from its histogram. */
+export function sessionEquivalentHours(
+  s: Pick<SessionUsage, 'histogram' | 'rpmMoments' | 'bandWidthRpm'>,
+  cfg: Pick<EngineTypeLifeConfig, 'referenceRpm' | 'bandWidthRpm'>,
+  exponent: number,
+): number {
+  if (s.rpmMoments) return equivalentHoursFromMoments(s.rpmMoments, cfg.referenceRpm, exponent)
+  return equivalentHoursAtBandMidpoints(s.histogram, s.bandWidthRpm ?? cfg.bandWidthRpm, cfg.referenceRpm, exponent)
 }
 
 /** Palmgren-Miner linear damage sum; infinite cycles to failure adds nothing. */
@@ -194,22 +211,6 @@ export function emptyUsage(): PartUsage {
   return { hours: 0, km: 0, eqHours: 0, overRevCounts: {}, sessions: 0, immediateInspection: false }
 }
 
-/**
- * The band an over-rev belongs to: the highest band whose minRpm <= peakRpm.
- * Chosen so that each event counts once, against exactly its own band's budget (a
- * top-band event does not also use up the lower bands' budgets). Classifying by
- * peak rpm against the current engine-type bands keeps counts consistent with the
- * current limits even if the bands were edited after the session. An event whose
- * peak is below every band keeps the band id the detector gave it.
- */
-export function overRevBandFor(event: OverRevEvent, cfg: EngineTypeLifeConfig): string {
-  let found: string | null = null
-  for (const band of cfg.overRevBands) {
-    if (band.minRpm <= event.peakRpm) found = band.id
-  }
-  return found ?? event.bandId
-}
-
 function bandRank(bandId: string, cfg: EngineTypeLifeConfig): number {
   return cfg.overRevBands.findIndex((b) => b.id === bandId)
 }
@@ -236,14 +237,15 @@ export function addSession(
   const clearedAt = opts.inspectionClearedAt ?? null
   const flagCounts = clearedAt === null || timeOf(s.at) >= timeOf(clearedAt)
   for (const ev of s.overRevs) {
-    const bandId = overRevBandFor(ev, cfg)
+    // the verdict stored with the event, the same one the session page and alerts show
+    const bandId = ev.bandId
     overRevCounts[bandId] = (overRevCounts[bandId] ?? 0) + 1
     if (flagCounts && triggersInspection(bandId, cfg, limits)) inspection = true
   }
   return {
     hours: usage.hours + s.runningSeconds / SECONDS_PER_HOUR,
     km: usage.km + s.distanceKm,
-    eqHours: usage.eqHours + equivalentHours(s.histogram, cfg, limits.damageExponent),
+    eqHours: usage.eqHours + sessionEquivalentHours(s, cfg, limits.damageExponent),
     overRevCounts,
     sessions: usage.sessions + 1,
     immediateInspection: inspection,

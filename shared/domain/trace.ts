@@ -13,13 +13,10 @@
 // counted anywhere and is reported in `gaps`; an event open before it ends at the
 // sample before the gap.
 
-export interface OverRevBandConfig {
-  id: string
-  label: string
-  minRpm: number
-  minDurationS: number
-  hysteresisRpm: number
-}
+import { classifyExcursion, profileLevel, type OverRevBandRule, type OverRevEvent } from './over-rev'
+import { RpmMomentsAccumulator, type RpmMoments } from './rpm-moments'
+
+export type OverRevBandConfig = OverRevBandRule
 
 export interface TraceConfig {
   /** running means rpm strictly above this */
@@ -45,12 +42,7 @@ export interface TraceSample {
   gear?: number
 }
 
-export interface OverRevEvent {
-  bandId: string
-  startS: number
-  durationS: number
-  peakRpm: number
-}
+export type { OverRevEvent }
 
 export interface LowOilPressureEvent {
   startS: number
@@ -75,6 +67,8 @@ export interface TraceSummary {
   distanceSource: 'speed' | 'laps' | 'none'
   /** seconds per band; band i covers [i*bandWidth, (i+1)*bandWidth); only running time counts */
   histogram: number[]
+  /** running time by ln(rpm) moments: equivalent hours for any exponent and reference rpm */
+  rpmMoments: RpmMoments
   overRevs: OverRevEvent[]
   lowOilPressure: LowOilPressureEvent[]
   /** the first MAX_LISTED_GAPS gaps; gapCount and gapSeconds cover all of them */
@@ -137,6 +131,8 @@ export const OVERVIEW_MAX_POINTS = 600
 export const MAX_LISTED_GAPS = 1000
 /** Decimal timestamps (0.1 + 0.2) must not drop an event that lasts exactly minDurationS. */
 const DURATION_EPSILON_S = 1e-9
+/** Distinct 0.1 rpm levels kept per over-rev profile; a longer excursion is merged to whole rpm. */
+const MAX_PROFILE_LEVELS = 4000
 
 export class TraceConfigError extends RangeError {}
 
@@ -163,11 +159,11 @@ export function validateTraceConfig(cfg: TraceConfig): void {
 }
 
 /**
- * Over-rev rule: an excursion starts at the first sample with rpm >= the lowest band's
- * minRpm and ends at the first sample with rpm < (lowest band minRpm - its hysteresisRpm),
- * so chatter around the threshold counts once. The excursion is one event, assigned to the
- * highest band whose minRpm its peak reached and whose minDurationS it lasted; if it lasted
- * less than every reached band's minDurationS it is not an event.
+ * Over-rev rule (see over-rev.ts): an excursion starts at the first sample with rpm >= the
+ * lowest band's minRpm and ends at the first sample with rpm < (lowest band minRpm - its
+ * hysteresisRpm), so chatter around the threshold counts once. The excursion is one event,
+ * assigned to the highest band whose minRpm its peak reached and whose minDurationS the time
+ * spent at or above that minRpm met; if it met no band's minDurationS it is not an event.
  * Low oil pressure: a run of samples with pressure < belowBar while rpm > aboveRpm, kept when
  * it lasts at least minDurationS; a sample without a pressure value ends the run.
  */
@@ -204,6 +200,8 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   private segBand = -1 // -1: not running
   private segStart = NaN
   private runningSeconds = 0
+  private readonly moments = new RpmMomentsAccumulator(TRACE_MAX_RPM)
+  private prevRpm = NaN
 
   private distanceKm = 0
 
@@ -212,6 +210,8 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   private gapSeconds = 0
 
   private readonly overRevs: OverRevEvent[] = []
+  /** time of the open excursion per 0.1 rpm level */
+  private orProfile = new Map<number, number>()
   private orOpen = false
   private orStart = NaN
   private orPeak = NaN
@@ -284,8 +284,10 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     const exitRpm = this.exitRpm
     const lopBelow = this.lopBelow
     const lopAbove = this.lopAbove
+    const moments = this.moments
     let samples = this.samples
     let prevT = this.prevT
+    let prevRpm = this.prevRpm
     let prevSpeed = this.prevSpeed
     let segBand = this.segBand
     let segStart = this.segStart
@@ -336,6 +338,9 @@ class TraceAnalyzerCore implements TraceAnalyzer {
             segBand = band
             segStart = t
           }
+          // the step takes the rpm of the sample that starts it, as the histogram does
+          if (prevRpm > idleRpm) moments.add(prevRpm, dt)
+          if (orOpen) this.addExcursionStep(prevRpm, dt)
           // trapezoid; with one end missing, hold the known value
           if (hasSpeed || prevSpeed === prevSpeed) {
             const a = prevSpeed === prevSpeed ? prevSpeed : speed
@@ -392,11 +397,13 @@ class TraceAnalyzerCore implements TraceAnalyzer {
 
       samples++
       prevT = t
+      prevRpm = rpm
       prevSpeed = speed
     }
 
     this.samples = samples
     this.prevT = prevT
+    this.prevRpm = prevRpm
     this.prevSpeed = prevSpeed
     this.segBand = segBand
     this.segStart = segStart
@@ -466,6 +473,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
       distanceKm: distance,
       distanceSource: source,
       histogram: [...this.histogram],
+      rpmMoments: this.moments.result(),
       overRevs: [...this.overRevs],
       lowOilPressure: [...this.lowOil],
       gaps: [...this.gaps],
@@ -497,16 +505,24 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     }
   }
 
-  private recordOverRev(startT: number, endT: number, peakRpm: number): void {
-    const duration = endT - startT
-    const bands = this.bands
-    for (let i = bands.length - 1; i >= 0; i--) {
-      const band = bands[i]!
-      if (peakRpm >= band.minRpm && duration + DURATION_EPSILON_S >= band.minDurationS) {
-        this.overRevs.push({ bandId: band.id, startS: startT - this.firstT, durationS: duration, peakRpm })
-        return
-      }
+  private addExcursionStep(rpm: number, dt: number): void {
+    const level = profileLevel(rpm)
+    const p = this.orProfile
+    p.set(level, (p.get(level) ?? 0) + dt)
+    if (p.size > MAX_PROFILE_LEVELS) {
+      // Whole rpm keeps every whole-rpm threshold exact; only the damage figure coarsens.
+      const merged = new Map<number, number>()
+      for (const [l, s] of p) merged.set(l - (l % 10), (merged.get(l - (l % 10)) ?? 0) + s)
+      this.orProfile = merged
     }
+  }
+
+  private recordOverRev(startT: number, endT: number, peakRpm: number): void {
+    const profile = [...this.orProfile.entries()].sort((a, b) => b[0] - a[0])
+    this.orProfile = new Map()
+    const verdict = classifyExcursion(profile, peakRpm, this.bands)
+    if (!verdict) return
+    this.overRevs.push({ bandId: verdict.bandId, startS: startT - this.firstT, durationS: endT - startT, peakRpm, secondsAbove: verdict.secondsAbove, profile })
   }
 
   private recordLowOil(startT: number, endT: number, minBar: number): void {

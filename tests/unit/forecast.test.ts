@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { mean, sum } from 'simple-statistics'
+import { mean } from 'simple-statistics'
 import {
   eqPerRunningHour,
   forecastEngine,
@@ -17,10 +17,12 @@ import {
   type PartUsage,
   type SessionUsage,
 } from '../../shared/domain/life'
+import { momentsOfSegments } from '../../shared/domain/rpm-moments'
 
 function makeCfg(overrides: Partial<EngineTypeLifeConfig> = {}): EngineTypeLifeConfig {
   return {
     referenceRpm: 8000,
+    revLimitRpm: 8500,
     bandWidthRpm: 1000,
     overRevBands: [
       { id: 'log', label: 'logged', minRpm: 8600, minDurationS: 0.2, hysteresisRpm: 100 },
@@ -72,7 +74,23 @@ function makeEvent(overrides: Partial<PlannedEvent> = {}): PlannedEvent {
 }
 
 function makeDuty(overrides: Partial<EngineDuty> = {}): EngineDuty {
-  return { histogramShare: [], kmPerHour: null, overRevsPerHour: {}, ...overrides }
+  return { recent: [], runningSeconds: 0, kmPerHour: null, overRevsPerHour: {}, ...overrides }
+}
+
+/** One recent hour of running at steady rpm steps, with its rpm moments as a logger import keeps them. */
+function dutyOf(segments: { rpm: number; seconds: number }[], overrides: Partial<EngineDuty> = {}): EngineDuty {
+  const seconds = segments.reduce((t, x) => t + x.seconds, 0)
+  const s = makeSession({ runningSeconds: seconds, rpmMoments: momentsOfSegments(segments) })
+  return makeDuty({ recent: [s], runningSeconds: seconds, ...overrides })
+}
+const HALF_5500_HALF_7500 = [
+  { rpm: 5500, seconds: 1800 },
+  { rpm: 7500, seconds: 1800 },
+]
+
+function expectFractions(actual: { fraction: number }[], expected: number[]) {
+  expect(actual.length).toBe(expected.length)
+  actual.forEach((a, i) => expect(a.fraction).toBeCloseTo(expected[i]!, 6))
 }
 
 function histogramOf(entries: Record<number, number>): number[] {
@@ -167,18 +185,20 @@ describe('equivalent hours in the forecast come from recent duty', () => {
   const cfg = makeCfg()
 
   it('eqPerRunningHour: half at 5,500 and half at 7,500 rpm, p = 1: 0.5 x 11/16 + 0.5 x 15/16 = 0.8125', () => {
-    const duty = makeDuty({ histogramShare: [0, 0, 0, 0, 0, 0.5, 0, 0.5] })
-    expect(eqPerRunningHour(duty, cfg, 1)).toBeCloseTo(0.8125, 14)
-    expect(eqPerRunningHour(duty, cfg, 0)).toBe(1)
+    const duty = dutyOf(HALF_5500_HALF_7500)
+    expect(eqPerRunningHour(duty, cfg, 1)).toBeCloseTo(0.8125, 8)
+    expect(eqPerRunningHour(duty, cfg, 0)).toBeCloseTo(1, 12)
+    // p = 13, by hand: 0.5 (5500/8000)^13 + 0.5 (7500/8000)^13 = 0.0038328 + 0.2160711 = 0.2199038
+    expect(eqPerRunningHour(duty, cfg, 13)).toBeCloseTo(0.2199038, 5)
   })
 
   it('eq hours govern: 5 of 8 eq h, 0.8125 eq h per 1 h event -> warning after the 2nd, limit after the 4th', () => {
     const limits = makeLimits({ hours: null, eqHours: 8, damageExponent: 1 })
-    const duty = makeDuty({ histogramShare: [0, 0, 0, 0, 0, 0.5, 0, 0.5] })
+    const duty = dutyOf(HALF_5500_HALF_7500)
     const events = [1, 2, 3, 4].map((i) => makeEvent({ eventId: 300 + i, startsAt: `2031-08-0${i}T09:00:00Z` }))
     const f = forecastPart(makeUsage({ eqHours: 5 }), limits, cfg, events, duty, OPTS)
     // 5.8125, 6.625, 7.4375, 8.25 of 8
-    expect(f.fractionAfter.map((x) => x.fraction)).toEqual([0.7265625, 0.828125, 0.9296875, 1.03125])
+    expectFractions(f.fractionAfter, [0.7265625, 0.828125, 0.9296875, 1.03125])
     expect(f.warningAt?.eventId).toBe(302)
     expect(f.dueAt?.eventId).toBe(303)
     expect(f.limitAt?.eventId).toBe(304)
@@ -198,11 +218,11 @@ describe('recentDuty', () => {
 
   it('uses the last N sessions by time (hand-computed: 25 % at band 5, 75 % at band 7, 110 km/h, 1 over-rev per hour)', () => {
     const duty = recentDuty([s2, old, s1], 2)
-    expect(duty.histogramShare).toEqual([0, 0, 0, 0, 0, 0.25, 0, 0.75])
+    expect(duty.recent.map((s) => s.sessionId)).toEqual([s2.sessionId, s1.sessionId])
+    expect(duty.runningSeconds).toBe(7200)
     expect(duty.kmPerHour).toBe(110)
     expect(duty.overRevsPerHour).toEqual({ log: 1 })
-    expect(sum(duty.histogramShare)).toBeCloseTo(1, 14)
-    // p = 1: 0.25 x 11/16 + 0.75 x 15/16
+    // these sessions have no rpm moments (entered by hand): band midpoints, p = 1: 0.25 x 11/16 + 0.75 x 15/16
     expect(eqPerRunningHour(duty, makeCfg(), 1)).toBeCloseTo(0.875, 14)
   })
 
@@ -212,33 +232,46 @@ describe('recentDuty', () => {
   })
 
   it('more sessions asked than exist: all of them', () => {
-    expect(recentDuty([s1], 10).histogramShare).toEqual([0, 0, 0, 0, 0, 0.5, 0, 0.5])
+    expect(recentDuty([s1], 10).recent).toEqual([s1])
   })
 
   it('falls back to no duty when there are no sessions', () => {
-    expect(recentDuty([], 5)).toEqual({ histogramShare: [], kmPerHour: null, overRevsPerHour: {} })
-    expect(recentDuty([s1, s2], 0)).toEqual({ histogramShare: [], kmPerHour: null, overRevsPerHour: {} })
+    expect(recentDuty([], 5)).toEqual({ recent: [], runningSeconds: 0, kmPerHour: null, overRevsPerHour: {} })
+    expect(recentDuty([s1, s2], 0)).toEqual({ recent: [], runningSeconds: 0, kmPerHour: null, overRevsPerHour: {} })
   })
 
   it('sessions with no running give no duty', () => {
     const idle = makeSession({ runningSeconds: 0, distanceKm: 0, histogram: [0, 0, 0] })
-    expect(recentDuty([idle], 3)).toEqual({ histogramShare: [], kmPerHour: null, overRevsPerHour: {} })
+    expect(recentDuty([idle], 3)).toEqual({ recent: [], runningSeconds: 0, kmPerHour: null, overRevsPerHour: {} })
   })
 })
 
 describe('recent duty fallback in the forecast', () => {
   const cfg = makeCfg()
 
-  it('no duty known: 1 eq h per running hour (running at the reference rpm assumed) and flagged', () => {
+  it('no duty known: steady running at the rev limit, the worst case, (8,500 / 8,000)^13 = 2.1993 eq h per running hour, and flagged', () => {
     const duty = recentDuty([], 5)
-    expect(eqPerRunningHour(duty, cfg, 13)).toBe(1)
-    const limits = makeLimits({ hours: null, eqHours: 4, km: 1000, damageExponent: 13 })
+    // by hand: 1.0625^13 = 2.1992581
+    expect(eqPerRunningHour(duty, cfg, 13)).toBeCloseTo(2.1992581, 6)
+    expect(eqPerRunningHour(duty, cfg, 0)).toBe(1)
+    const limits = makeLimits({ hours: null, eqHours: 6, km: 1000, damageExponent: 13 })
     const events = [makeEvent({ startsAt: '2031-08-01T09:00:00Z' }), makeEvent({ startsAt: '2031-08-08T09:00:00Z', plannedKm: 90 })]
     const f = forecastPart(makeUsage({ eqHours: 2, km: 100 }), limits, cfg, events, duty, OPTS)
     expect(f.assumedDuty).toBe(true)
-    expect(f.fractionAfter.map((x) => x.fraction)).toEqual([0.75, 1])
+    // 2 + 2.1992581 = 4.1992581 of 6 (0.699876, ok); + 2.1992581 = 6.3985162 (1.066419, over)
+    expectFractions(f.fractionAfter, [0.699876, 1.066419])
+    expect(f.limitAt?.eventId).toBe(events[1]!.eventId)
     // the first event had neither planned km nor a km rate
     expect(f.kmUnknown).toBe(true)
+  })
+
+  it('"will finish" is never given on an easy assumption: with no duty, an event the engine could not finish at its rev limit is not fit to run', () => {
+    // 1 h event; 1.5 eq h left of 10. At the reference rpm (the old assumption) it would finish with 0.5 eq h to spare.
+    const limits = makeLimits({ hours: null, eqHours: 10, damageExponent: 13 })
+    const ev = makeEvent({ startsAt: '2031-08-01T09:00:00Z' })
+    const f = forecastPart(makeUsage({ eqHours: 8.5 }), limits, cfg, [ev], recentDuty([], 5), OPTS)
+    const e = forecastEngine([{ componentId: 1, forecast: f, immediateInspection: false }], [ev])
+    expect(e.canFinish[0]).toMatchObject({ ok: false, reason: 'projected-over' })
   })
 
   it('over-revs stay constant unless projection is asked for', () => {
@@ -255,7 +288,7 @@ describe('recent duty fallback in the forecast', () => {
 
 describe('forecastEngine', () => {
   const cfg = makeCfg()
-  const duty = makeDuty({ kmPerHour: 100, histogramShare: [0, 0, 0, 0, 0, 0.5, 0, 0.5] })
+  const duty = dutyOf(HALF_5500_HALF_7500, { kmPerHour: 100 })
   // part 11: the hours case above (limit at Eskerby); part 12: 5 of 8 eq h at p = 1 (limit at Dunwick)
   const rod = forecastPart(makeUsage({ hours: 6, km: 500 }), makeLimits({ hours: 10, km: 1000 }), cfg, CALENDAR, duty, OPTS)
   const crank = forecastPart(makeUsage({ eqHours: 5 }), makeLimits({ hours: null, eqHours: 8, damageExponent: 1 }), cfg, CALENDAR, duty, OPTS)
@@ -266,7 +299,7 @@ describe('forecastEngine', () => {
 
   it('hand check of the crank part on this calendar: 1, 0.5, 1, 1, 1 h at 0.8125 eq h per hour', () => {
     // 5.8125, 6.21875, 7.03125, 7.84375, 8.65625 of 8
-    expect(crank.fractionAfter.map((x) => x.fraction)).toEqual([0.7265625, 0.77734375, 0.87890625, 0.98046875, 1.08203125])
+    expectFractions(crank.fractionAfter, [0.7265625, 0.77734375, 0.87890625, 0.98046875, 1.08203125])
     expect(crank.limitAt?.name).toBe('Eskerby')
   })
 
@@ -291,7 +324,7 @@ describe('forecastEngine', () => {
     const e = forecastEngine(parts, CALENDAR)
     expect(e.canFinish.map((c) => c.name)).toEqual(['Ashfold', 'Brinmoor', 'Coldharbour', 'Dunwick', 'Eskerby'])
     expect(e.canFinish.map((c) => c.ok)).toEqual([true, true, true, true, false])
-    expect(e.canFinish.map((c) => c.worstFraction)).toEqual([0.7265625, 0.77734375, 0.87890625, 0.98046875, 1.08203125])
+    expectFractions(e.canFinish.map((c) => ({ fraction: c.worstFraction })), [0.7265625, 0.77734375, 0.87890625, 0.98046875, 1.08203125])
     expect(e.canFinish.map((c) => c.governingPartId)).toEqual([12, 12, 12, 12, 12])
     expect(e.canFinish[4]?.reason).toBe('projected-over')
     expect(e.canFinish[0]?.reason).toBeNull()

@@ -2,10 +2,12 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { accumulateUsage, type ComponentLimits, type EngineTypeLifeConfig, type SessionUsage } from '../../shared/domain/life'
 import { createUsageIndex } from '../../shared/domain/life-index'
+import { momentsOfSegments } from '../../shared/domain/rpm-moments'
 
 // The prefix-sum index is an optimisation: it must give accumulateUsage's answer for every window.
 const cfg: EngineTypeLifeConfig = {
   referenceRpm: 8000,
+  revLimitRpm: 8800,
   bandWidthRpm: 500,
   overRevBands: [
     { id: 'A', label: 'A', minRpm: 8500, minDurationS: 0.1, hysteresisRpm: 50 },
@@ -22,6 +24,7 @@ const sessionArb = fc.record({
   histogram: fc.array(fc.integer({ min: 0, max: 2000 }), { minLength: 1, maxLength: 20 }),
   peaks: fc.array(fc.integer({ min: 8400, max: 9600 }), { maxLength: 2 }),
   gapHours: fc.integer({ min: 1, max: 200 }),
+  fromFile: fc.boolean(),
 })
 
 describe('usage index (case built with known answers: the reference accumulateUsage)', () => {
@@ -31,7 +34,10 @@ describe('usage index (case built with known answers: the reference accumulateUs
         let t = Date.UTC(2026, 0, 1)
         const sessions: SessionUsage[] = raw.map((r, i) => {
           t += r.gapHours * 3600_000
-          return { sessionId: i + 1, at: new Date(t).toISOString(), runningSeconds: r.runningSeconds, distanceKm: r.distanceKm, histogram: r.histogram, overRevs: r.peaks.map((pk) => ({ bandId: 'A', peakRpm: pk, durationS: 0.3, startS: 1 })) }
+          return { sessionId: i + 1, at: new Date(t).toISOString(), runningSeconds: r.runningSeconds, distanceKm: r.distanceKm, histogram: r.histogram,
+            // a session read from a file carries rpm moments (here: each band's time at 30 % of its width)
+            rpmMoments: r.fromFile ? momentsOfSegments(r.histogram.map((sec, k) => ({ rpm: (k + 0.3) * 500, seconds: sec }))) : null,
+            overRevs: r.peaks.map((pk) => ({ bandId: pk >= 9000 ? 'B' : 'A', peakRpm: pk, durationS: 0.3, startS: 1 })) }
         })
         const index = createUsageIndex(sessions, cfg)
         const from = sessions.length ? a % (sessions.length + 1) : 0

@@ -109,7 +109,8 @@ describe('known answers', () => {
       oil_p: k >= 600 && k < 650 ? '1.80' : '4.00',
     }))
     const s = (await analyzeLoggerStream(bytesStream(csv), SIMPLE, CFG)).summary
-    expect(s.overRevs).toEqual([{ bandId: 'log', startS: 3, durationS: expect.closeTo(0.4, 9), peakRpm: 9050 }])
+    expect(s.overRevs).toEqual([{ bandId: 'log', startS: 3, durationS: expect.closeTo(0.4, 9), peakRpm: 9050, secondsAbove: expect.any(Object), profile: expect.any(Array) }])
+    expect(s.overRevs[0]!.secondsAbove!.log).toBeCloseTo(0.4, 9)
     expect(s.lowOilPressure).toEqual([{ startS: 6, durationS: expect.closeTo(0.5, 9), minBar: 1.8 }])
   })
 

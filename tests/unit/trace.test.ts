@@ -146,6 +146,10 @@ describe('gaps', () => {
   })
 })
 
+/** The event as the session lists it, without its time-at-rpm profile. */
+const core = (events: { bandId: string; startS: number; durationS: number; peakRpm: number }[]) =>
+  events.map(({ bandId, startS, durationS, peakRpm }) => ({ bandId, startS, durationS, peakRpm }))
+
 describe('over-rev events', () => {
   const chatter = () => [
     ...run(0, 1, 100, () => ({ rpm: 8000 })),
@@ -156,7 +160,7 @@ describe('over-rev events', () => {
 
   it('counts chatter around the threshold once thanks to hysteresis', () => {
     const s = analyzeTrace(makeConfig(), chatter())
-    expect(s.overRevs).toEqual([{ bandId: 'log', startS: 1, durationS: 1, peakRpm: 9050 }])
+    expect(core(s.overRevs)).toEqual([{ bandId: 'log', startS: 1, durationS: 1, peakRpm: 9050 }])
   })
 
   it('without hysteresis the same chatter is 50 separate 0.01 s excursions', () => {
@@ -185,13 +189,13 @@ describe('over-rev events', () => {
       ...run(1, 0.3, 100, (_t, k) => ({ rpm: k === 10 ? 9700 : 9100 })),
       ...run(1.3, 1, 100, () => ({ rpm: 8000 })),
     ]
-    expect(analyzeTrace(makeConfig(), samples).overRevs).toEqual([{ bandId: 'teardown', startS: 1, durationS: expect.closeTo(0.3, 12), peakRpm: 9700 }])
+    expect(core(analyzeTrace(makeConfig(), samples).overRevs)).toEqual([{ bandId: 'teardown', startS: 1, durationS: expect.closeTo(0.3, 12), peakRpm: 9700 }])
   })
 
   it('a missed downshift straight into the top band counts there even for one sample (minDurationS 0)', () => {
     const samples = [...run(0, 1, 100, () => ({ rpm: 7000 })), { t: 1, rpm: 9800 }, ...run(1.01, 1, 100, () => ({ rpm: 7000 }))]
     const s = analyzeTrace(makeConfig(), samples)
-    expect(s.overRevs).toEqual([{ bandId: 'teardown', startS: 1, durationS: expect.closeTo(0.01, 12), peakRpm: 9800 }])
+    expect(core(s.overRevs)).toEqual([{ bandId: 'teardown', startS: 1, durationS: expect.closeTo(0.01, 12), peakRpm: 9800 }])
   })
 
   it('falls back to a lower band when the peak band duration is not met', () => {
@@ -207,7 +211,34 @@ describe('over-rev events', () => {
   it('closes an excursion still open at the end of the trace', () => {
     const samples = [...run(0, 1, 100, () => ({ rpm: 8000 })), ...run(1, 0.5, 100, () => ({ rpm: 9200 })), { t: 1.5, rpm: 9200 }]
     const s = analyzeTrace(makeConfig(), samples)
-    expect(s.overRevs).toEqual([{ bandId: 'log', startS: 1, durationS: 0.5, peakRpm: 9200 }])
+    expect(core(s.overRevs)).toEqual([{ bandId: 'log', startS: 1, durationS: 0.5, peakRpm: 9200 }])
+  })
+
+  it('a short spike above a higher band inside a longer lower-band excursion counts once, against the band whose duration it met', () => {
+    // 0.8 s at 9,100 rpm (log) with a 0.05 s flick to 9,400 rpm (inspect needs 0.1 s) in the middle
+    const samples = [
+      ...run(0, 1, 100, () => ({ rpm: 8000 })),
+      ...run(1, 0.8, 100, (_t, k) => ({ rpm: k >= 40 && k < 45 ? 9400 : 9100 })),
+      ...run(1.8, 1, 100, () => ({ rpm: 8000 })),
+    ]
+    const s = analyzeTrace(makeConfig(), samples)
+    expect(core(s.overRevs)).toEqual([{ bandId: 'log', startS: 1, durationS: expect.closeTo(0.8, 9), peakRpm: 9400 }])
+    // time at or above each threshold, by hand: 80 steps of 0.01 s above 9,000, 5 of them above 9,300
+    expect(s.overRevs[0]!.secondsAbove!.log).toBeCloseTo(0.8, 9)
+    expect(s.overRevs[0]!.secondsAbove!.inspect).toBeCloseTo(0.05, 9)
+    expect(s.overRevs[0]!.secondsAbove!.teardown).toBe(0)
+    // the same flick held for 0.1 s meets the inspect band's duration
+    const longer = samples.map((x) => (x.t >= 1.4 - 1e-9 && x.t < 1.5 - 1e-9 ? { ...x, rpm: 9400 } : x))
+    expect(analyzeTrace(makeConfig(), longer).overRevs.map((e) => e.bandId)).toEqual(['inspect'])
+  })
+
+  it('measures a band by the time spent at or above its threshold, not by the whole excursion (hysteresis keeps the excursion whole)', () => {
+    // 0.3 s at 9,050 then 0.3 s at 8,900 (below 9,000 but above the 8,850 release): one excursion of 0.6 s, 0.3 s above 9,000
+    const bands = [{ id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.4, hysteresisRpm: 150 }]
+    const samples = [...run(0, 1, 100, () => ({ rpm: 8000 })), ...run(1, 0.3, 100, () => ({ rpm: 9050 })), ...run(1.3, 0.3, 100, () => ({ rpm: 8900 })), ...run(1.6, 1, 100, () => ({ rpm: 8000 }))]
+    expect(analyzeTrace(makeConfig({ overRevBands: bands }), samples).overRevs).toEqual([])
+    const s = analyzeTrace(makeConfig({ overRevBands: [{ ...bands[0]!, minDurationS: 0.3 }] }), samples)
+    expect(core(s.overRevs)).toEqual([{ bandId: 'log', startS: 1, durationS: expect.closeTo(0.6, 9), peakRpm: 9050 }])
   })
 
   it('bands may come in any order', () => {

@@ -1,6 +1,7 @@
 import { SUPPLIER_ROLES } from '#shared/roles'
 import { EngineTypeUpdateSchema } from '#shared/schemas/fleet'
 import { bumpLifeRevision, toEngineType } from '../../services/fleet-data'
+import { reclassifyOverRevs } from '../../services/over-revs'
 
 const COLUMNS = {
   name: 'name', revLimitRpm: 'rev_limit_rpm', idleRpm: 'idle_rpm', bandWidthRpm: 'band_width_rpm', referenceRpm: 'reference_rpm',
@@ -24,6 +25,7 @@ export default defineEventHandler(async (event) => {
     await trx('engine_types').where('id', id).update(patch)
     const after = await trx('engine_types').where('id', id).first()
     await audit(trx, actor, { entity: 'engine_type', entityId: id, action: 'update', before: toEngineType(before), after: toEngineType(after) })
+    if (input.overRevBands) await reclassifyOverRevs(trx, actor, id, input.overRevBands)
     await bumpLifeRevision(trx)
     const positions = await trx('engine_type_positions').where('engine_type_id', id)
     return toEngineType(after, positions)
