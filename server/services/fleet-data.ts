@@ -1,7 +1,7 @@
 // Loads fleet rows and converts them into domain shapes and DTOs at the repository boundary
 // (DECIMAL strings to numbers, JSON columns parsed, dates to ISO strings).
 import type { Knex } from 'knex'
-import type { ComponentLimits, EngineSession, EngineTypeLifeConfig, Installation, OverRevBand } from '#shared/domain/life'
+import type { ComponentLimits, EngineSession, EngineTypeLifeConfig, Installation, OverRevBand, OverRevEvent } from '#shared/domain/life'
 import { engineTypeSheet } from '#shared/domain/kinematics'
 import { decodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
 import type { ComponentTypeDto, EngineTypeDto, EventDto, SessionDto } from '#shared/types/fleet'
@@ -135,8 +135,10 @@ export function toSessionDto(r: any): SessionDto {
     distanceKm: num(r.distance_km),
     bandWidthRpm: r.band_width_rpm,
     histogram: json(r.histogram, []),
-    overRevs: json(r.over_revs, []),
+    // the profile stays on the server: it serves re-classification and damage figures
+    overRevs: json<OverRevEvent[]>(r.over_revs, []).map(({ profile: _profile, ...ev }) => ev),
     lowOilPressure: json(r.low_oil_pressure, []),
+    eqExact: r.rpm_moments !== null && r.rpm_moments !== undefined,
     maxRpm: r.max_rpm ?? null,
     maxOilTempC: numOrNull(r.max_oil_temp_c),
     maxWaterTempC: numOrNull(r.max_water_temp_c),

@@ -1,11 +1,16 @@
 // Storing a session (manual entry or logger import): checks against the engine type, one transaction, audited.
 import type { Knex } from 'knex'
 import type { ManualSessionInput } from '#shared/schemas/fleet'
-import { encodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
+import { encodeMoments, histogramEqHoursBounds, momentsRelativeErrorBound, type RpmMoments } from '#shared/domain/rpm-moments'
+import { addSession, emptyUsage, evaluatePartLife } from '#shared/domain/life'
+import { excursionDamage } from '#shared/domain/over-rev'
+import type { SessionCostDto, SessionViewDto } from '#shared/types/fleet'
 import type { Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
-import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
+import { bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toSessionDto } from './fleet-data'
+import { canSee } from '../utils/guard'
+import { json } from '../utils/db'
 import { engineRowFor } from './fleet-scope'
 import { triggerLifeCheck } from '../utils/alerts'
 
@@ -116,4 +121,57 @@ export async function createManualSession(db: Knex, actor: Actor, input: ManualS
   // After the commit, so the check sees the new session; in the background, so the request does not wait.
   triggerLifeCheck()
   return session
+}
+
+/** A session with what it cost each part fitted when it ran, how exact that is, and what each over-rev did. */
+export async function sessionView(db: Knex, actor: Actor, id: number): Promise<SessionViewDto> {
+  const row = await sessionById(db, id)
+  if (!row || !canSee(actor, { supplierId: row.supplier_id, teamId: row.team_id })) notFound('Session')
+  const engine = await db('engines').where('id', row.engine_id).first()
+  const [type] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
+  const componentTypes = new Map((await loadComponentTypes(db)).map((c) => [c.id, c]))
+  const fitted = await db('installations as i')
+    .join('components as c', 'c.id', 'i.component_id')
+    .where('i.engine_id', row.engine_id)
+    .where('i.from_at', '<=', row.started_at)
+    .where((w) => w.whereNull('i.to_at').orWhere('i.to_at', '>', row.started_at))
+    .select('c.id', 'c.serial', 'c.component_type_id', 'i.position')
+  const session = toEngineSession(row)
+  const cfg = lifeConfig(type!)
+  const exact = session.rpmMoments != null
+  const cost: SessionCostDto[] = fitted.map((p) => {
+    const ct = componentTypes.get(p.component_type_id)!
+    const limits = limitsOf(ct)
+    const usage = addSession(emptyUsage(), session, cfg, limits)
+    const life = evaluatePartLife(usage, limits, cfg)
+    const range = exact ? null : histogramEqHoursBounds(session.histogram, session.bandWidthRpm, cfg.referenceRpm, ct.damageExponent)
+    return {
+      componentId: p.id,
+      serial: p.serial,
+      position: type!.positions.find((x) => x.position === p.position)?.label ?? p.position,
+      typeName: ct.name,
+      category: ct.category,
+      damageExponent: ct.damageExponent,
+      hours: usage.hours,
+      km: usage.km,
+      eqHours: usage.eqHours,
+      eqHoursRange: range && { low: range.low, high: range.high },
+      overRevCounts: usage.overRevCounts,
+      fraction: life.fraction,
+      governing: life.governing,
+    }
+  })
+  const exponents = [...new Set(cost.map((c) => c.damageExponent))].filter((p) => p > 0).sort((a, b) => a - b)
+  const overRevDamage = session.overRevs.map((ev) =>
+    ev.profile ? exponents.map((p) => ({ exponent: p, ...excursionDamage(ev.profile!, cfg.referenceRpm, cfg.revLimitRpm, p) })) : null,
+  )
+  const details = json<Record<string, any> | null>(row.details, null)
+  return {
+    session: toSessionDto(row),
+    details: details && { overview: details.overview ?? [], warnings: details.warnings ?? [], skippedRows: details.skippedRows ?? 0, rows: details.rows ?? null, gaps: details.gaps ?? [], gapCount: details.gapCount ?? 0, distanceSource: details.distanceSource ?? null },
+    eqErrorBound: exact ? Math.max(0, ...cost.map((c) => momentsRelativeErrorBound(c.damageExponent))) : null,
+    cost,
+    overRevDamage,
+    engineType: { code: type!.code, revLimitRpm: type!.revLimitRpm, referenceRpm: type!.referenceRpm, overRevBands: type!.overRevBands, bandWidthRpm: type!.bandWidthRpm },
+  }
 }

@@ -145,8 +145,11 @@ export interface SessionDto {
   distanceKm: number
   bandWidthRpm: number
   histogram: number[]
-  overRevs: { bandId: string; peakRpm: number; durationS: number; startS: number }[]
+  /** the verdict (bandId) decided once when the session was read; secondsAbove per band id for logger events */
+  overRevs: { bandId: string; peakRpm: number; durationS: number; startS: number; secondsAbove?: Record<string, number> }[]
   lowOilPressure: { startS: number; durationS: number; minBar: number }[]
+  /** true when equivalent hours come from the session's rpm moments (exact), false for band data only */
+  eqExact: boolean
   maxRpm: number | null
   maxOilTempC: number | null
   maxWaterTempC: number | null
@@ -167,4 +170,48 @@ export interface EventDto {
   plannedSeconds: number | null
   plannedKm: number | null
   plans: { engineId: number; engineSerial: string; teamId: number; chassis: string | null; plannedSeconds: number | null; plannedKm: number | null }[]
+}
+
+/** What one session cost one part fitted at the time. */
+export interface SessionCostDto {
+  componentId: number
+  serial: string
+  position: string
+  typeName: string
+  category: string
+  damageExponent: number
+  hours: number
+  km: number
+  eqHours: number
+  /** for band data only: the range the exact value lies in (band low and high edges) */
+  eqHoursRange: { low: number; high: number } | null
+  overRevCounts: Record<string, number>
+  fraction: number
+  governing: LimitMeasure | null
+}
+
+export interface OverRevDamageDto {
+  exponent: number
+  eqHours: number
+  /** beyond what the same time at the rev limit would have cost */
+  extraEqHours: number
+}
+
+export interface SessionViewDto {
+  session: SessionDto
+  details: {
+    overview: { t: number; rpm: number }[]
+    warnings: { row: number; column?: string; message: string }[]
+    skippedRows: number
+    rows: number | null
+    gaps: { atS: number; seconds: number }[]
+    gapCount: number
+    distanceSource: string | null
+  } | null
+  /** largest relative error of the equivalent hours shown, over the exponents of the fitted parts (exact sessions) */
+  eqErrorBound: number | null
+  cost: SessionCostDto[]
+  /** per over-rev event (same order as session.overRevs): its damage per damage exponent of the fitted parts; null when entered by hand */
+  overRevDamage: (OverRevDamageDto[] | null)[]
+  engineType: { code: string; revLimitRpm: number; referenceRpm: number; overRevBands: OverRevBand[]; bandWidthRpm: number }
 }
