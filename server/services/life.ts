@@ -169,6 +169,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     const canFinish: CanFinishDto[] = efc.canFinish.map((c) => ({
       ...c,
       reason: c.reason ?? null,
+      dutyAssumed: duty.runningSeconds <= 0,
       startsAt: plannedById.get(c.eventId)!.startsAt,
       assigned: plannedById.get(c.eventId)!.assigned,
       chassis: plannedById.get(c.eventId)!.chassis,

@@ -88,6 +88,8 @@ export interface CanFinishDto {
   worstFraction: number
   governingPartId: number | null
   reason: CanFinishReason | null
+  /** the engine has no recent running: the projection assumes steady running at the rev limit */
+  dutyAssumed: boolean
   assigned: boolean
   chassis: string | null
 }
