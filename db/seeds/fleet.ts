@@ -145,21 +145,6 @@ function positionsFor(code: string, cylinders: number) {
   return p
 }
 
-/** A plausible rev histogram: most time high in the range, some at part throttle, none below idle. */
-export function makeHistogram(t: Pick<SeedEngineType, 'rev_limit_rpm' | 'idle_rpm' | 'band_width_rpm'>, seconds: number, rand: () => number, intensity = 1) {
-  const bands = Math.ceil((t.rev_limit_rpm + 1000) / t.band_width_rpm)
-  const peak = t.rev_limit_rpm * (0.8 + 0.06 * intensity + rand() * 0.02)
-  const sigma = t.rev_limit_rpm * 0.11
-  const weights: number[] = []
-  for (let i = 0; i < bands; i++) {
-    const mid = (i + 0.5) * t.band_width_rpm
-    if (mid < t.idle_rpm || mid > t.rev_limit_rpm + t.band_width_rpm / 2) weights.push(0)
-    else weights.push(Math.exp(-(((mid - peak) / sigma) ** 2)) + 0.04)
-  }
-  const total = weights.reduce((a, b) => a + b, 0)
-  return weights.map((w) => Math.round((w / total) * seconds * 1000) / 1000)
-}
-
 const DAY = 86_400_000
 /** Demo sessions come from invented traces read by the trace analyzer; no raw file is kept for them. */
 export const SYNTHETIC_FILE_NAME = 'invented demo trace (raw file not kept)'

@@ -44,19 +44,21 @@ function rpmSampler(t: TraceEngineType, rand: () => number, intensity: number) {
 }
 
 /**
- * A trace of about `seconds` of running: steps of 0.5 to 1 s at steady rpm, excursions sampled
- * at 20 Hz (up to the peak in 0.1 s, held, down again below the lowest band's hysteresis).
+ * A trace of about `seconds` of running: steps of 0.5 to 1 s at steady rpm (or `stepS` wide, for
+ * the benches' large fleets), excursions sampled at 20 Hz (up to the peak in 0.1 s, held, down
+ * again below the lowest band's hysteresis).
  */
 export function syntheticTrace(
   t: TraceEngineType,
   seconds: number,
   rand: () => number,
-  opts: { intensity?: number; excursions?: PlannedExcursion[] } = {},
+  opts: { intensity?: number; excursions?: PlannedExcursion[]; stepS?: [min: number, max: number] } = {},
 ): TraceSummary {
+  const [stepMin, stepMax] = opts.stepS ?? [0.5, 1]
   const analyzer = createTraceAnalyzer({
     idleRpm: t.idle_rpm,
     bandWidthRpm: t.band_width_rpm,
-    maxGapS: 1,
+    maxGapS: stepMax,
     overRevBands: t.over_rev_bands,
     lowOilPressure: { belowBar: 0, aboveRpm: 0, minDurationS: 1 },
     trackLengthKm: null,
@@ -98,7 +100,7 @@ export function syntheticTrace(
       continue
     }
     push(time, next())
-    time += 0.5 + rand() * 0.5
+    time += stepMin + rand() * (stepMax - stepMin)
   }
   push(time, t.idle_rpm) // the last sample closes the last step
   if (n > 0) analyzer.pushBlock(block, n)
