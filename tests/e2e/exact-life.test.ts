@@ -88,7 +88,7 @@ beforeAll(async () => {
   const q = new URLSearchParams({ engineId: String(engineId), kind: 'test', startedAt, fileName: 'exact-life.csv', mapping: JSON.stringify(MAPPING) })
   const res = await fetch(`${BASE}/api/imports?${q}`, { method: 'POST', headers: { cookie: race.cookie, 'content-type': 'text/csv', origin: BASE }, body: CSV })
   const body = await res.json()
-  expect(res.status, JSON.stringify(body)).toBe(200)
+  expect(res.status, JSON.stringify(body)).toBe(201)
   sessionId = body.session.id
 })
 
@@ -103,7 +103,7 @@ afterAll(async () => {
     await db()('mail_outbox').whereIn('alert_id', alertIds).delete()
     await db()('alerts').whereIn('id', alertIds).delete()
   }
-  await db()('sessions').where('id', sessionId).delete()
+  if (sessionId) await db()('sessions').where('id', sessionId).delete()
   await db()('life_revision').where('id', 1).increment('revision', 1)
 })
 
