@@ -5,6 +5,7 @@ import * as logger from './20261202_03_logger'
 import * as alerts from './20261202_04_alerts'
 import * as oil from './20261202_05_oil'
 import * as teardown from './20261202_06_teardown'
+import * as reciprocatingMassCheck from './20261203_04_reciprocating_mass_check'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -14,6 +15,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202_04_alerts': alerts,
   '20261202_05_oil': oil,
   '20261202_06_teardown': teardown,
+  '20261203_04_reciprocating_mass_check': reciprocatingMassCheck,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
