@@ -6,6 +6,7 @@ import * as alerts from './20261202_04_alerts'
 import * as oil from './20261202_05_oil'
 import * as teardown from './20261202_06_teardown'
 import * as exactLife from './20261203_01_exact-life'
+import * as reciprocatingMassCheck from './20261203_04_reciprocating_mass_check'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -16,6 +17,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202_05_oil': oil,
   '20261202_06_teardown': teardown,
   '20261203_01_exact-life': exactLife,
+  '20261203_04_reciprocating_mass_check': reciprocatingMassCheck,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

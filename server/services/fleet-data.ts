@@ -42,6 +42,7 @@ export function toEngineType(r: any, positions: any[] = []): EngineTypeDto {
       conrodMm: t.conrodMm,
       revLimitRpm: t.revLimitRpm,
       reciprocatingMassKg: t.reciprocatingMassKg,
+      overRevBands: t.overRevBands,
     }),
   }
 }

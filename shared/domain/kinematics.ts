@@ -74,6 +74,57 @@ export function inertiaForce(massKg: number, accel: number): number {
   return massKg * accel
 }
 
+/** Reciprocating inertia force at the dead centres for one rpm, N, positive towards BDC. */
+export interface InertiaForceAt {
+  rpm: number
+  /** at TDC the mass pulls the piston away from the crank: the rod and its bolts in tension */
+  tdcN: number
+  /** at BDC the mass pushes towards the crank (negative in this sign convention) */
+  bdcN: number
+}
+
+/**
+ * F = m a at TDC and BDC, with the exact slider-crank acceleration (Heywood ch. 2), which at the
+ * dead centres is a w^2 (1 + 1/R) and -a w^2 (1 - 1/R); the two-term form gives the same there.
+ * massKg is the reciprocating mass per cylinder: piston, pin, rings, clips and the small-end share
+ * of the conrod. A design aid, not a service limit.
+ */
+export function inertiaForceAtRpm(strokeMm: number, conrodMm: number, massKg: number, rpm: number): InertiaForceAt {
+  if (!(massKg > 0) || !Number.isFinite(massKg)) throw new RangeError('reciprocating mass must be positive')
+  if (!(rpm >= 0) || !Number.isFinite(rpm)) throw new RangeError('rpm must be zero or above')
+  return {
+    rpm,
+    tdcN: inertiaForce(massKg, pistonAcceleration(strokeMm, conrodMm, rpm, 0, 'exact')),
+    bdcN: inertiaForce(massKg, pistonAcceleration(strokeMm, conrodMm, rpm, 180, 'exact')),
+  }
+}
+
+export interface InertiaForceRow extends InertiaForceAt {
+  /** null for the rev limit, else the over-rev band whose threshold this is */
+  bandId: string | null
+  label: string
+}
+
+/**
+ * The inertia force at the rev limit and at each over-rev band's threshold, lowest rpm first;
+ * null when the engine type has no reciprocating mass.
+ */
+export function inertiaForceTable(t: {
+  strokeMm: number
+  conrodMm: number
+  revLimitRpm: number
+  reciprocatingMassKg?: number | null
+  overRevBands?: readonly { id: string; label: string; minRpm: number }[]
+}): InertiaForceRow[] | null {
+  const mass = t.reciprocatingMassKg
+  if (mass === undefined || mass === null) return null
+  const rows: InertiaForceRow[] = [{ bandId: null, label: 'Rev limit', ...inertiaForceAtRpm(t.strokeMm, t.conrodMm, mass, t.revLimitRpm) }]
+  for (const b of [...(t.overRevBands ?? [])].sort((x, y) => x.minRpm - y.minRpm)) {
+    rows.push({ bandId: b.id, label: b.label, ...inertiaForceAtRpm(t.strokeMm, t.conrodMm, mass, b.minRpm) })
+  }
+  return rows
+}
+
 /** Even firing interval: 720 / cylinders for a four-stroke, 360 / cylinders for a two-stroke. */
 export function firingIntervalDeg(cylinders: number, strokes: 2 | 4 = 4): number {
   if (!Number.isInteger(cylinders) || cylinders < 1) throw new RangeError('cylinders must be a positive integer')
@@ -92,6 +143,8 @@ export interface EngineTypeSheet {
   pistonAccelTdcAtLimit: number
   pistonAccelBdcAtLimit: number
   inertiaForceTdcAtLimit: number | null
+  /** at the rev limit and each over-rev band's threshold; null without a reciprocating mass */
+  inertiaForces: InertiaForceRow[] | null
   firingIntervalDeg: number
   /** conrod length / stroke, as engine builders quote it */
   rodRatio: number
@@ -107,6 +160,7 @@ export function engineTypeSheet(t: {
   conrodMm: number
   revLimitRpm: number
   reciprocatingMassKg?: number | null
+  overRevBands?: readonly { id: string; label: string; minRpm: number }[]
   strokes?: 2 | 4
 }): EngineTypeSheet {
   const { R } = geometry(t.strokeMm, t.conrodMm)
@@ -120,6 +174,7 @@ export function engineTypeSheet(t: {
     pistonAccelTdcAtLimit: accelTdc,
     pistonAccelBdcAtLimit: pistonAcceleration(t.strokeMm, t.conrodMm, t.revLimitRpm, 180),
     inertiaForceTdcAtLimit: mass === undefined || mass === null ? null : inertiaForce(mass, accelTdc),
+    inertiaForces: inertiaForceTable(t),
     firingIntervalDeg: firingIntervalDeg(t.cylinders, t.strokes ?? 4),
     rodRatio: t.conrodMm / t.strokeMm,
     rodToCrankRadius: R,

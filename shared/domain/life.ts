@@ -170,42 +170,8 @@ export function sessionEquivalentHours(
   return equivalentHoursAtBandMidpoints(s.histogram, s.bandWidthRpm ?? cfg.bandWidthRpm, cfg.referenceRpm, exponent)
 }
 
-/** Palmgren-Miner linear damage sum; infinite cycles to failure adds nothing. */
-export function minerSum(blocks: { cycles: number; cyclesToFailure: number }[]): number {
-  let d = 0
-  for (const b of blocks) {
-    if (b.cycles === 0 || b.cyclesToFailure === Infinity) continue
-    d += b.cycles / b.cyclesToFailure
-  }
-  return d
-}
-
-/**
- * Basquin S-N line Sf = a N^b through (1e3, f Sut) and (1e6, Se), as in Shigley's fatigue chapter.
- * By default a stress below the endurance limit gives infinite life (Shigley's cut-off).
- */
-export function basquin(
-  sut: number,
-  se: number,
-  f: number,
-  opts: { enduranceCutoff?: boolean } = {},
-): { a: number; b: number; cyclesAtStress(s: number): number; stressAtCycles(n: number): number } {
-  if (!(sut > 0 && se > 0 && f > 0)) throw new RangeError('Sut, Se and f must be positive')
-  const cutoff = opts.enduranceCutoff ?? true
-  const a = (f * sut) ** 2 / se
-  const b = -Math.log10((f * sut) / se) / 3
-  return {
-    a,
-    b,
-    cyclesAtStress(s: number): number {
-      if (cutoff && s < se) return Infinity
-      return Math.pow(s / a, 1 / b)
-    },
-    stressAtCycles(n: number): number {
-      return a * Math.pow(n, b)
-    },
-  }
-}
+export { minerSum } from './fatigue'
+export { basquin } from './fatigue'
 
 export function emptyUsage(): PartUsage {
   return { hours: 0, km: 0, eqHours: 0, overRevCounts: {}, sessions: 0, immediateInspection: false }

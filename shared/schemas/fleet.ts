@@ -3,6 +3,15 @@ import { z } from 'zod'
 
 const positive = (what: string) => z.number({ error: `${what} must be a number` }).positive(`${what} must be above zero`)
 const nullablePositive = z.number().positive('must be above zero').nullable()
+// Per cylinder: piston, pin, rings, clips and the small-end share of the conrod. Stored to 0.1 g, so
+// the floor keeps a tiny value from rounding to zero; the cap catches grams typed as kilograms.
+// Empty (null) leaves the inertia forces off the sheet.
+const reciprocatingMass = z
+  .number({ error: 'must be a number of kilograms' })
+  .positive({ error: 'must be above zero', abort: true })
+  .min(0.001, 'must be at least 0.001 kg')
+  .max(10, 'must be at most 10 kg per cylinder (enter kilograms, not grams)')
+  .nullable()
 
 export const OverRevBandSchema = z.object({
   id: z.string().trim().min(1).max(20),
@@ -20,7 +29,7 @@ export const EngineTypeUpdateSchema = z
     bandWidthRpm: z.number().int().min(50).max(2000),
     referenceRpm: z.number().int().min(1000).max(25000),
     maxGapS: positive('maxGapS').max(60),
-    reciprocatingMassKg: nullablePositive,
+    reciprocatingMassKg: reciprocatingMass,
     overRevBands: z.array(OverRevBandSchema).min(1).max(6),
     lowOilPressure: z.object({ belowBar: z.number().min(0).max(20), aboveRpm: z.number().min(0).max(25000), minDurationS: z.number().min(0).max(60) }),
   })
@@ -85,7 +94,7 @@ export const EngineTypeCreateSchema = z.object({
   boreMm: z.number().positive().max(200),
   strokeMm: z.number().positive().max(200),
   conrodMm: z.number().positive().max(400),
-  reciprocatingMassKg: nullablePositive.default(null),
+  reciprocatingMassKg: reciprocatingMass.default(null),
   revLimitRpm: z.number().int().min(1000).max(25000),
   idleRpm: z.number().int().min(0).max(6000),
   bandWidthRpm: z.number().int().min(50).max(2000),

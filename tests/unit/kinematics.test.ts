@@ -4,6 +4,8 @@ import {
   engineTypeSheet,
   firingIntervalDeg,
   inertiaForce,
+  inertiaForceAtRpm,
+  inertiaForceTable,
   meanPistonSpeed,
   peakPistonSpeed,
   pistonAcceleration,
@@ -198,8 +200,88 @@ describe('engine type sheet', () => {
   it('leaves the inertia force empty without a reciprocating mass, and honours two-stroke', () => {
     const s = engineTypeSheet({ cylinders: 2, boreMm: 54, strokeMm: 54.5, conrodMm: 110, revLimitRpm: 12000, strokes: 2 })
     expect(s.inertiaForceTdcAtLimit).toBeNull()
+    expect(s.inertiaForces).toBeNull()
     expect(s.firingIntervalDeg).toBe(180)
     const n = engineTypeSheet({ cylinders: 4, boreMm: 82, strokeMm: 94, conrodMm: 150, revLimitRpm: 7000, reciprocatingMassKg: null })
     expect(n.inertiaForceTdcAtLimit).toBeNull()
+    expect(n.inertiaForces).toBeNull()
+  })
+})
+
+describe('reciprocating inertia force F = m a (Heywood, Internal Combustion Engine Fundamentals, ch. 2; exact acceleration form)', () => {
+  it('0.5 kg, stroke 90 mm, conrod 145 mm, 7,500 rpm: 18,186 N at TDC (worked case [derived], 0.01 %)', () => {
+    expectRel(inertiaForceAtRpm(STROKE, ROD, 0.5, RPM).tdcN, 18186, 1e-4)
+  })
+
+  it('same case at BDC: 0.5 kg x -19,143.6 m/s^2 = -9,571.8 N (worked case [derived], 0.01 %)', () => {
+    expectRel(inertiaForceAtRpm(STROKE, ROD, 0.5, RPM).bdcN, -9571.8, 1e-4)
+  })
+
+  it('at an over-rev threshold, hand-computed from m a w^2 (1 + 1/R): 0.52 kg, stroke 81 mm, conrod 140 mm, 9,900 rpm = 29,183.4 N', () => {
+    // Heywood ch. 2 at TDC, numbers written out:
+    //   a = 81 / 2 = 40.5 mm = 0.0405 m; R = 140 / 40.5 = 3.45679; 1 + 1/R = 1 + 40.5/140 = 1.289286
+    //   w = 2 pi 9,900 / 60 = 1,036.7256 rad/s; w^2 = 1,074,799.92 rad^2/s^2
+    //   F = 0.52 x 0.0405 x 1,074,799.92 x 1.289286 = 29,183.35 N
+    const w = (2 * Math.PI * 9900) / 60
+    const byHand = 0.52 * 0.0405 * w * w * (1 + 40.5 / 140)
+    expectRel(byHand, 29183.35, 1e-6)
+    const f = inertiaForceAtRpm(81, 140, 0.52, 9900)
+    expectRel(f.tdcN, byHand, 1e-12)
+    expectRel(f.tdcN, 29183.35, 1e-6)
+    // BDC: -m a w^2 (1 - 1/R) = -0.52 x 0.0405 x 1,074,799.92 x (1 - 40.5/140) = -16,087.22 N
+    expectRel(f.bdcN, -16087.22, 1e-6)
+  })
+
+  it('scales with rpm^2: 8,000 / 7,500 rpm gives x 1.13778, 0.5 kg x 41,384 m/s^2 = 20,692 N (worked case [derived], 0.01 %)', () => {
+    const at7500 = inertiaForceAtRpm(STROKE, ROD, 0.5, 7500)
+    const at8000 = inertiaForceAtRpm(STROKE, ROD, 0.5, 8000)
+    expectRel(at8000.tdcN, 20692, 1e-4)
+    expectRel(at8000.tdcN / at7500.tdcN, 1.13778, 1e-5)
+    expectRel(at8000.bdcN / at7500.bdcN, 1.13778, 1e-5)
+    expectRel(inertiaForceAtRpm(STROKE, ROD, 0.5, 15000).tdcN, 4 * 18186, 1e-4)
+  })
+
+  it('refuses a mass that is not positive and an rpm that is no speed', () => {
+    expect(() => inertiaForceAtRpm(STROKE, ROD, 0, RPM)).toThrow(RangeError)
+    expect(() => inertiaForceAtRpm(STROKE, ROD, -0.5, RPM)).toThrow(RangeError)
+    expect(() => inertiaForceAtRpm(STROKE, ROD, 0.5, Number.NaN)).toThrow(RangeError)
+    expect(() => inertiaForceAtRpm(STROKE, 40, 0.5, RPM)).toThrow(RangeError)
+  })
+})
+
+describe('inertia force table: the rev limit and each over-rev threshold', () => {
+  // Invented V8: stroke 81 mm, conrod 140 mm, 0.52 kg, limit 9,200 rpm, bands listed out of order on purpose.
+  const type = {
+    strokeMm: 81,
+    conrodMm: 140,
+    revLimitRpm: 9200,
+    reciprocatingMassKg: 0.52,
+    overRevBands: [
+      { id: 'C', label: 'Teardown', minRpm: 9900 },
+      { id: 'A', label: 'Logged', minRpm: 9300 },
+      { id: 'B', label: 'Inspect valve train', minRpm: 9500 },
+    ],
+  }
+
+  it('lists the rev limit first, then the bands by threshold, each with its force (hand-computed, m a w^2 (1 + 1/R))', () => {
+    const rows = inertiaForceTable(type)!
+    expect(rows.map((r) => [r.bandId, r.label, r.rpm])).toEqual([
+      [null, 'Rev limit', 9200],
+      ['A', 'Logged', 9300],
+      ['B', 'Inspect valve train', 9500],
+      ['C', 'Teardown', 9900],
+    ])
+    // 0.52 x 0.0405 x (2 pi N / 60)^2 x 1.289286 at N = 9,200 / 9,300 / 9,500 / 9,900 rpm
+    const expected = [25202.31, 25753.17, 26872.74, 29183.35]
+    rows.forEach((r, i) => expectRel(r.tdcN, expected[i]!, 1e-6))
+  })
+
+  it('is on the sheet, and empty without a mass', () => {
+    const sheet = engineTypeSheet({ cylinders: 8, boreMm: 94, ...type })
+    expect(sheet.inertiaForces?.map((r) => r.rpm)).toEqual([9200, 9300, 9500, 9900])
+    expectRel(sheet.inertiaForces![3]!.tdcN, 29183.35, 1e-6)
+    expectRel(sheet.inertiaForceTdcAtLimit!, 25202.31, 1e-6)
+    expect(inertiaForceTable({ ...type, reciprocatingMassKg: null })).toBeNull()
+    expect(inertiaForceTable({ ...type, overRevBands: undefined })).toHaveLength(1)
   })
 })
