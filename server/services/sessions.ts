@@ -4,6 +4,7 @@ import type { ManualSessionInput } from '#shared/schemas/fleet'
 import { encodeMoments, histogramEqHoursBounds, momentsRelativeErrorBound, type RpmMoments } from '#shared/domain/rpm-moments'
 import { addSession, emptyUsage, evaluatePartLife } from '#shared/domain/life'
 import { excursionDamage } from '#shared/domain/over-rev'
+import { inertiaForceAtRpm } from '#shared/domain/kinematics'
 import type { SessionCostDto, SessionViewDto } from '#shared/types/fleet'
 import type { Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
@@ -165,6 +166,8 @@ export async function sessionView(db: Knex, actor: Actor, id: number): Promise<S
   const overRevDamage = session.overRevs.map((ev) =>
     ev.profile ? exponents.map((p) => ({ exponent: p, ...excursionDamage(ev.profile!, cfg.referenceRpm, cfg.revLimitRpm, p) })) : null,
   )
+  const t = type!
+  const overRevPeakForceN = session.overRevs.map((ev) => (t.reciprocatingMassKg ? inertiaForceAtRpm(t.strokeMm, t.conrodMm, t.reciprocatingMassKg, ev.peakRpm).tdcN : null))
   const details = json<Record<string, any> | null>(row.details, null)
   return {
     session: toSessionDto(row),
@@ -172,6 +175,7 @@ export async function sessionView(db: Knex, actor: Actor, id: number): Promise<S
     eqErrorBound: exact ? Math.max(0, ...cost.map((c) => momentsRelativeErrorBound(c.damageExponent))) : null,
     cost,
     overRevDamage,
+    overRevPeakForceN,
     engineType: { code: type!.code, revLimitRpm: type!.revLimitRpm, referenceRpm: type!.referenceRpm, overRevBands: type!.overRevBands, bandWidthRpm: type!.bandWidthRpm },
   }
 }

@@ -215,5 +215,7 @@ export interface SessionViewDto {
   cost: SessionCostDto[]
   /** per over-rev event (same order as session.overRevs): its damage per damage exponent of the fitted parts; null when entered by hand */
   overRevDamage: (OverRevDamageDto[] | null)[]
+  /** per over-rev event: the reciprocating inertia force at its peak rpm, TDC (rod in tension), N; null without a mass */
+  overRevPeakForceN: (number | null)[]
   engineType: { code: string; revLimitRpm: number; referenceRpm: number; overRevBands: OverRevBand[]; bandWidthRpm: number }
 }
