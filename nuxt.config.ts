@@ -2,6 +2,9 @@
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   srcDir: '.',
+  // A production build goes under node_modules/.cache by default; worktrees that share one
+  // node_modules would then overwrite each other's builds.
+  buildDir: '.nuxt',
   telemetry: false,
   devtools: { enabled: false },
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],
