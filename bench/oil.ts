@@ -13,7 +13,7 @@ for (let e = 0; e < engines; e++) {
   const list: OilSampleValues[] = []
   for (let i = 0; i < perEngine; i++) {
     const elements = Object.fromEntries(OIL_ELEMENTS.map((el) => [el, 5 + rand() * 10]))
-    list.push({ sampleId: `E${e}-${i}`, sampledAt: new Date(Date.UTC(2026, 0, 1) + i * 86_400_000).toISOString(), engineHours: i * 4, oilHours: i * 4, elements, kv40: 88, kv100: 14, fuelDilutionPct: 1, waterPct: 0.02, p4: 3000, p6: 900, p14: 80, grade: '5W-40' })
+    list.push({ sampleId: `E${e}-${i}`, sampledAt: new Date(Date.UTC(2026, 0, 1) + i * 86_400_000).toISOString(), engineHours: i * 4, oilHours: i * 4, elements, kv40: 88, kv100: 14, hths: 3.9, fuelDilutionPct: 1, waterPct: 0.02, p4: 3000, p6: 900, p14: 80, grade: '5W-40' })
   }
   byEngine.push(list)
 }

@@ -7,6 +7,9 @@ import * as oil from './20261202_05_oil'
 import * as teardown from './20261202_06_teardown'
 import * as exactLife from './20261203_01_exact-life'
 import * as reciprocatingMassCheck from './20261203_04_reciprocating_mass_check'
+import * as oilHths from './20261203_03_a_oil_hths'
+import * as oilParticleBasis from './20261203_03_b_oil_particle_basis'
+import * as oilNewReference from './20261203_03_c_oil_new_reference'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -18,6 +21,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202_06_teardown': teardown,
   '20261203_01_exact-life': exactLife,
   '20261203_04_reciprocating_mass_check': reciprocatingMassCheck,
+  '20261203_03_a_oil_hths': oilHths,
+  '20261203_03_b_oil_particle_basis': oilParticleBasis,
+  '20261203_03_c_oil_new_reference': oilNewReference,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

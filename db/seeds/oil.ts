@@ -1,8 +1,10 @@
 // Demo oil history: a few lab samples per engine that has run, from two invented labs.
 // KV8-1202's latest sample shows an iron jump that trips the rate limit; the KV8-45 fleet
-// carries enough samples for its statistical limits to be active. All figures are invented.
+// carries enough samples for its statistical limits to be active. Each engine type has its
+// oil limits with a new-oil reference, so the viscosity change and grade checks have something
+// to read against. All figures are invented.
 import type { Knex } from 'knex'
-import type { OilElement, OilSampleValues } from '#shared/domain/oil/limits'
+import { DEFAULT_OIL_LIMITS, type NewOilReference, type OilElement, type OilLimits, type OilSampleValues } from '#shared/domain/oil/limits'
 import { oilSampleSchema } from '#shared/domain/oil/schema'
 import { insertSamples } from '../../server/services/oil-rows'
 import { rng } from './fleet'
@@ -18,12 +20,28 @@ const BASE: Record<'KV8' | 'KT4', Partial<Record<OilElement, number>>> = {
 // Wear metals that build up with oil hours, ppm per hour.
 const WEAR_PER_HOUR: Partial<Record<OilElement, number>> = { Fe: 0.8, Cu: 0.1, Al: 0.15, Pb: 0.05 }
 
+// The oil each type is filled with, as the supplier measured it new. Samples in service run a
+// little thinner (shear): a few per cent below these, well inside the change limits.
+const NEW_OIL: Record<'KV8' | 'KT4', { typeCode: string; reference: NewOilReference }> = {
+  KV8: { typeCode: 'KV8-45', reference: { grade: '5W-40', kv40: 92.0, kv100: 14.6, tbn: 8.2 } },
+  KT4: { typeCode: 'KT4-20', reference: { grade: '0W-30', kv40: 63.0, kv100: 11.0, tbn: 9.6 } },
+}
+// HTHS (mPa s at 150 C) as a fixed share of KV100, so adding it draws nothing from the generator
+// and the rest of the demo history stays as it was. Above the J300 minimums (3.5 and 2.9).
+const HTHS_PER_KV100: Record<'KV8' | 'KT4', number> = { KV8: 0.275, KT4: 0.295 }
+
 const SAMPLE_COUNT: Record<string, number> = {
   'KV8-1101': 9, 'KV8-1102': 6, 'KV8-1103': 3, 'KV8-1201': 8, 'KV8-1202': 7, 'KV8-1001': 4,
   'KT4-2101': 8, 'KT4-2102': 6, 'KT4-2103': 4, 'KT4-2104': 3, 'KT4-2201': 6,
 }
 
 export async function seedOil(trx: Knex.Transaction, ctx: { now: Date }) {
+  for (const { typeCode, reference } of Object.values(NEW_OIL)) {
+    const type = await trx('engine_types').where('code', typeCode).first('id')
+    if (!type) continue
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: reference }
+    await trx('oil_limits').insert({ engine_type_id: type.id, limits: JSON.stringify(limits) })
+  }
   const now = ctx.now.getTime()
   const engines = await trx('engines').whereIn('serial', Object.keys(SAMPLE_COUNT)).orderBy('serial').select('id', 'serial', 'built_at')
   const rows: { engineId: number; values: OilSampleValues; lab: string; source: 'seed' }[] = []
@@ -70,6 +88,7 @@ export async function seedOil(trx: Knex.Transaction, ctx: { now: Date }) {
         elements,
         kv40: Number(kv40.toFixed(2)),
         kv100: Number(kv100.toFixed(2)),
+        hths: Number((kv100 * HTHS_PER_KV100[family]).toFixed(2)),
         fuelDilutionPct: Number(noise(1.4, 0.6).toFixed(1)),
         waterPct: Number(noise(0.02, 0.6).toFixed(3)),
         p4: Math.round(p4),

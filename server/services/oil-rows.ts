@@ -18,6 +18,7 @@ export interface SampleRow {
   elements: unknown
   kv40: string | null
   kv100: string | null
+  hths: string | null
   fuel_dilution_pct: string | null
   water_pct: string | null
   p4: string | null
@@ -46,6 +47,7 @@ export function sampleValues(row: SampleRow): OilSampleValues {
     elements,
     kv40: numOrNull(row.kv40),
     kv100: numOrNull(row.kv100),
+    hths: numOrNull(row.hths),
     fuelDilutionPct: numOrNull(row.fuel_dilution_pct),
     waterPct: numOrNull(row.water_pct),
     p4: numOrNull(row.p4),
@@ -72,6 +74,7 @@ function sampleInsertRow(engineId: number, s: OilSampleValues, extra: { lab: str
     elements: JSON.stringify(s.elements),
     kv40: s.kv40,
     kv100: s.kv100,
+    hths: s.hths,
     fuel_dilution_pct: s.fuelDilutionPct,
     water_pct: s.waterPct,
     p4: s.p4,

@@ -12,9 +12,9 @@ import Papa from 'papaparse'
 import { DEFAULT_OIL_LIMITS, populationLimits, type OilLimits, type OilReason, type OilSampleValues, type OilStatus } from '#shared/domain/oil/limits'
 import { oilSampleSchema } from '#shared/domain/oil/schema'
 import { assessEngineHistory, assessLatest, leaveOneOutLimits } from '#shared/domain/oil/history'
-import { applyMapping, headerSignature, mappingProblems, type OilCsvMapping } from '#shared/domain/oil/lab-csv'
+import { DEFAULT_PARTICLE_BASIS, PARTICLE_BASES, applyMapping, countsPerMl, headerSignature, mappingProblems, type OilCsvMapping, type ParticleBasis } from '#shared/domain/oil/lab-csv'
 import { OilLimitsSchema } from '#shared/schemas/oil'
-import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLimitsDto, OilSampleDto } from '#shared/types/oil'
+import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLabMappingDto, OilLimitsDto, OilSampleDto } from '#shared/types/oil'
 import type { Actor } from '../utils/guard'
 import { canSee, scopeQuery } from '../utils/guard'
 import { badRequest, conflict, notFound, zodMessage } from '../utils/errors'
@@ -32,7 +32,9 @@ const STORAGE = 'files'
 // ---------------------------------------------------------------- limits
 
 function completeLimits(stored: unknown): OilLimits {
-  const parsed = OilLimitsSchema.safeParse(json<unknown>(stored, null))
+  const raw = json<unknown>(stored, null)
+  // Keys added since the row was written take their defaults instead of failing the whole value.
+  const parsed = OilLimitsSchema.safeParse(raw && typeof raw === 'object' && !Array.isArray(raw) ? { ...DEFAULT_OIL_LIMITS, ...raw } : raw)
   // A stored value that no longer reads as limits falls back to the defaults rather than failing every page.
   return parsed.success ? (parsed.data as OilLimits) : DEFAULT_OIL_LIMITS
 }
@@ -175,7 +177,10 @@ function sampleDto(row: SampleRow, assessed: ReturnType<typeof assessEngineHisto
     reasons: assessed.assessment.reasons,
     iso4406: assessed.assessment.iso4406,
     viscosityIndex: assessed.assessment.viscosityIndex,
+    gradeBasis: assessed.assessment.grade,
     gradeCheck: assessed.assessment.gradeCheck,
+    hthsCheck: assessed.assessment.hthsCheck,
+    viscosityChange: assessed.assessment.viscosityChange,
     previousSampleId: assessed.previousSampleId,
   }
 }
@@ -276,7 +281,8 @@ export interface ImportRowIssue {
  * transaction only when all rows pass, so a bad row leaves nothing behind.
  * Rows are numbered from 1 after the header (line = row + 1).
  */
-export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string; csv: string; mapping: OilCsvMapping; saveMapping?: boolean }, now = new Date()): Promise<OilImportResult> {
+export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string; csv: string; mapping: OilCsvMapping; particleBasis?: ParticleBasis; saveMapping?: boolean }, now = new Date()): Promise<OilImportResult> {
+  const basis = input.particleBasis ?? DEFAULT_PARTICLE_BASIS
   const parsed = Papa.parse<string[]>(input.csv.replace(/^\uFEFF/, ''), { header: false, skipEmptyLines: 'greedy' })
   const table = parsed.data
   if (table.length < 2) badRequest('csv: the file needs a header row and at least one sample row')
@@ -303,7 +309,8 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
         issues.push({ row, line, field: 'row', message: `has ${cells.length} cells where the header has ${headers.length}` })
         continue
       }
-      const record = applyMapping(headers, cells, input.mapping)
+      // Counts are stored per mL, the basis of the ISO 4406 table, whatever the lab printed.
+      const record = countsPerMl(applyMapping(headers, cells, input.mapping), basis)
       const serial = (record.engineSerial ?? '').toUpperCase()
       const engine = engines.get(serial)
       if (!engine) {
@@ -344,8 +351,8 @@ export async function importOilCsv(db: Knex, actor: Actor, input: { lab: string;
       badRequest(`Nothing imported: ${head}${more}`, { issues })
     }
     await insertSamples(trx, good, actor.id)
-    await audit(trx, actor, { entity: 'oil_import', entityId: input.lab, action: 'create', after: { lab: input.lab, rows: good.length, sampleIds: good.map((g) => g.values.sampleId) } })
-    if (input.saveMapping) await upsertMapping(trx, actor, input.lab, headers, input.mapping)
+    await audit(trx, actor, { entity: 'oil_import', entityId: input.lab, action: 'create', after: { lab: input.lab, rows: good.length, particleBasis: basis, sampleIds: good.map((g) => g.values.sampleId) } })
+    if (input.saveMapping) await upsertMapping(trx, actor, input.lab, headers, input.mapping, basis)
     return { imported: good.length, sampleIds: good.map((g) => g.values.sampleId) }
   })
 }
@@ -365,19 +372,20 @@ export async function deleteOilSample(db: Knex, actor: Actor, id: number): Promi
 
 // -------------------------------------------------------------- mappings
 
-async function upsertMapping(trx: Knex.Transaction, actor: Actor, lab: string, headers: string[], mapping: OilCsvMapping) {
-  const row = { header_signature: headerSignature(headers), mapping: JSON.stringify(mapping), updated_by: actor.id, updated_at: new Date() }
+async function upsertMapping(trx: Knex.Transaction, actor: Actor, lab: string, headers: string[], mapping: OilCsvMapping, basis: ParticleBasis) {
+  const row = { header_signature: headerSignature(headers), mapping: JSON.stringify(mapping), particle_basis: basis, updated_by: actor.id, updated_at: new Date() }
   const existing = await trx('oil_lab_mappings').where({ organisation_id: actor.organisationId, lab }).forUpdate().first('id')
   if (existing) await trx('oil_lab_mappings').where('id', existing.id).update(row)
   else await trx('oil_lab_mappings').insert({ organisation_id: actor.organisationId, lab, ...row })
 }
 
-export async function saveOilMapping(db: Knex, actor: Actor, input: { lab: string; headers: string[]; mapping: OilCsvMapping }) {
+export async function saveOilMapping(db: Knex, actor: Actor, input: { lab: string; headers: string[]; mapping: OilCsvMapping; particleBasis?: ParticleBasis }) {
   const problems = mappingProblems(input.headers, input.mapping)
   if (problems.length) badRequest(problems.join('; '))
+  const basis = input.particleBasis ?? DEFAULT_PARTICLE_BASIS
   await db.transaction(async (trx) => {
-    await upsertMapping(trx, actor, input.lab, input.headers, input.mapping)
-    await audit(trx, actor, { entity: 'oil_lab_mapping', entityId: input.lab, action: 'update', after: input.mapping })
+    await upsertMapping(trx, actor, input.lab, input.headers, input.mapping, basis)
+    await audit(trx, actor, { entity: 'oil_lab_mapping', entityId: input.lab, action: 'update', after: { mapping: input.mapping, particleBasis: basis } })
   })
   return (await oilMappings(db, actor)).find((m) => m.lab === input.lab)!
 }
@@ -385,7 +393,14 @@ export async function saveOilMapping(db: Knex, actor: Actor, input: { lab: strin
 /** The actor's organisation's saved lab layouts. */
 export async function oilMappings(db: Db, actor: Actor) {
   const rows = await db('oil_lab_mappings').where('organisation_id', actor.organisationId).orderBy('lab')
-  return rows.map((r) => ({ id: r.id as number, lab: r.lab as string, headerSignature: r.header_signature as string, mapping: json<OilCsvMapping>(r.mapping, {}), updatedAt: iso(r.updated_at) }))
+  return rows.map((r): OilLabMappingDto => ({
+    id: r.id as number,
+    lab: r.lab as string,
+    headerSignature: r.header_signature as string,
+    mapping: json<OilCsvMapping>(r.mapping, {}),
+    particleBasis: (PARTICLE_BASES as readonly string[]).includes(r.particle_basis) ? (r.particle_basis as ParticleBasis) : DEFAULT_PARTICLE_BASIS,
+    updatedAt: iso(r.updated_at),
+  }))
 }
 
 // ------------------------------------------------------------ attachment

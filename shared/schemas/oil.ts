@@ -1,7 +1,8 @@
 // Request bodies of the oil API, shared by the forms and the routes.
 import { z } from 'zod'
 import { OIL_ELEMENTS } from '#shared/domain/oil/limits'
-import { OIL_CSV_FIELDS } from '#shared/domain/oil/lab-csv'
+import { OIL_CSV_FIELDS, PARTICLE_BASES } from '#shared/domain/oil/lab-csv'
+import { parseGrade } from '#shared/domain/oil/viscosity'
 
 const limitValue = (label: string) => z.number({ error: `${label} must be a number` }).min(0, { error: `${label} cannot be negative` }).max(100_000, { error: `${label} must be at most 100000` }).nullable()
 
@@ -15,12 +16,27 @@ const ElementLimitSchema = z.object({
 
 const elementsShape = Object.fromEntries(OIL_ELEMENTS.map((e) => [e, ElementLimitSchema.optional()])) as Record<(typeof OIL_ELEMENTS)[number], z.ZodOptional<typeof ElementLimitSchema>>
 
+const refValue = (label: string, unit: string, max: number) =>
+  z.number({ error: `${label} must be a number of ${unit}` }).positive({ error: `${label} must be positive` }).max(max, { error: `${label} must be at most ${max} ${unit}` }).nullable()
+
+/** The new oil of an engine type as measured; every figure may be left empty. */
+export const NewOilReferenceSchema = z.object({
+  grade: z.string({ error: 'grade must be text such as 5W-40' }).trim().max(20)
+    .refine((g) => g === '' || parseGrade(g) !== null, { error: 'grade must be an SAE J300 grade such as 5W-40 or 40' })
+    .transform((g) => (g === '' ? null : g))
+    .nullable(),
+  kv40: refValue('kv40', 'mm²/s', 5000),
+  kv100: refValue('kv100', 'mm²/s', 1000),
+  tbn: refValue('tbn', 'mg KOH/g', 100),
+}).refine((r) => r.kv40 === null || r.kv100 === null || r.kv100 < r.kv40, { error: 'kv100 must be lower than kv40: oil thins as it warms', path: ['kv100'] })
+
 export const OilLimitsSchema = z.object({
   elements: z.strictObject(elementsShape, { error: 'elements must be limits per element symbol' }),
   fuelDilutionCautionPct: z.number().min(0).max(100, { error: 'fuelDilutionCautionPct must be at most 100' }).nullable(),
   waterCautionPct: z.number().min(0).max(100, { error: 'waterCautionPct must be at most 100' }).nullable(),
+  kv40ChangeCautionPct: z.number().min(0).max(100, { error: 'kv40ChangeCautionPct must be at most 100' }).nullable(),
   kv100ChangeCautionPct: z.number().min(0).max(100, { error: 'kv100ChangeCautionPct must be at most 100' }).nullable(),
-  newOilKv100: z.number().positive({ error: 'newOilKv100 must be positive' }).max(1000).nullable().optional(),
+  newOil: NewOilReferenceSchema.nullable(),
   statistical: z.object({
     enabled: z.boolean(),
     minSamples: z.number().int().min(3, { error: 'minSamples must be at least 3' }).max(10_000),
@@ -50,6 +66,8 @@ export const OilImportSchema = z.object({
   lab: z.string({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
   csv: z.string({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
   mapping: OilCsvMappingSchema,
+  /** volume the file's particle counts refer to; per mL when not given */
+  particleBasis: z.enum(PARTICLE_BASES, { error: 'particleBasis must be per_ml or per_100ml' }).optional(),
   saveMapping: z.boolean().optional(),
 })
 
@@ -57,4 +75,5 @@ export const OilMappingSaveSchema = z.object({
   lab: z.string().trim().min(1, { error: 'lab is required' }).max(120),
   headers: z.array(z.string().max(200)).min(1, { error: 'headers are required' }).max(200),
   mapping: OilCsvMappingSchema,
+  particleBasis: z.enum(PARTICLE_BASES, { error: 'particleBasis must be per_ml or per_100ml' }).optional(),
 })

@@ -1,4 +1,5 @@
-import type { OilLimits, OilReason, OilSampleValues, OilStatus, PopulationLimit } from '#shared/domain/oil/limits'
+import type { GradeBasis, OilLimits, OilReason, OilSampleValues, OilStatus, PopulationLimit } from '#shared/domain/oil/limits'
+import type { OilCsvMapping, ParticleBasis } from '#shared/domain/oil/lab-csv'
 
 export interface OilSampleDto extends OilSampleValues {
   id: number
@@ -11,7 +12,12 @@ export interface OilSampleDto extends OilSampleValues {
   reasons: OilReason[]
   iso4406: string | null
   viscosityIndex: number | null
+  /** the grade the checks used: the sample's own, or the engine type's */
+  gradeBasis: GradeBasis | null
   gradeCheck: { ok: boolean; min: number; max: number } | null
+  hthsCheck: { ok: boolean; min: number } | null
+  /** percent change from the engine type's new-oil reference */
+  viscosityChange: { kv40Pct: number | null; kv100Pct: number | null }
   previousSampleId: string | null
 }
 
@@ -46,4 +52,14 @@ export interface OilLimitsDto {
 export interface OilImportResult {
   imported: number
   sampleIds: string[]
+}
+
+export interface OilLabMappingDto {
+  id: number
+  lab: string
+  headerSignature: string
+  mapping: OilCsvMapping
+  /** volume the lab's particle counts refer to */
+  particleBasis: ParticleBasis
+  updatedAt: string | null
 }

@@ -1,6 +1,7 @@
 import { existsSync, readdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import * as ss from 'simple-statistics' // the ESM build has no default export
 import { db, signIn, USERS, type Client } from './helpers'
 
 // KV8-1203 is Tidewater's spare KV8-45 with no oil history in the demo: the tests build their own on it.
@@ -18,6 +19,7 @@ const sid = (tag: string) => `T-${stamp}-${tag}-${++seq}`
 const at = (hoursAfterBuild: number) => new Date(spare.builtAt.getTime() + hoursAfterBuild * 3_600_000).toISOString()
 const samplesWith = (ids: string[]) => db()('oil_samples').whereIn('sample_id', ids)
 const REPORT_DIR = join(process.env.NUXT_STORAGE_DIR ?? '.data/files', 'oil')
+const parseJson = (v: any) => (typeof v === 'string' ? JSON.parse(v) : v)
 const storedReports = () => (existsSync(REPORT_DIR) ? readdirSync(REPORT_DIR).length : 0)
 
 async function post(client: Client, body: Record<string, unknown>) {
@@ -135,7 +137,7 @@ describe('lab CSV import', () => {
     created.push(...rows.map((r: any) => r.id))
     expect(rows.every((r: any) => r.source === 'csv' && r.lab === `Test lab ${stamp}` && Number(r.kv100) === 14.1)).toBe(true)
     const maps = await raceB.get('/api/oil/mappings')
-    expect(maps.body.find((m: any) => m.lab === `Test lab ${stamp}`)?.mapping).toEqual(MAPPING)
+    expect(maps.body.find((m: any) => m.lab === `Test lab ${stamp}`)).toMatchObject({ mapping: MAPPING, particleBasis: 'per_ml' })
     // Another team does not see Tidewater's lab layouts.
     expect((await managerA.get('/api/oil/mappings')).body.find((m: any) => m.lab === `Test lab ${stamp}`)).toBeUndefined()
   })
@@ -220,9 +222,12 @@ describe('a constructed history: rate and statistical limits', () => {
     expect(s4.body.reasons.filter((r: any) => r.kind !== 'statistical')).toEqual([])
     const stat = s4.body.reasons.find((r: any) => r.element === 'Cu')
     expect(stat).toMatchObject({ kind: 'statistical', level: 'critical', value: cu })
-    expect(stat.limit).toBeCloseTo(pop.critical, 6)
+    // mean + 3 s of the copper of every other sample of the type, from the stored rows with simple-statistics
+    const others = await db()('oil_samples as s').join('engines as e', 'e.id', 's.engine_id').where('e.engine_type_id', spare.typeId).whereNot('s.sample_id', s4.body.sampleId).select('s.elements')
+    const copper = others.map((r: any) => parseJson(r.elements).Cu).filter((x: unknown): x is number => typeof x === 'number')
+    expect(stat.limit).toBeCloseTo(ss.mean(copper) + 3 * ss.sampleStandardDeviation(copper), 6)
     expect(stat.message).toContain(`Cu ${cu} ppm above the statistical critical limit`)
-    expect(stat.message).toContain(`of ${pop.n} samples`)
+    expect(stat.message).toContain(`of ${copper.length} samples`)
 
     // The engine's latest status is the outlier's; the list and the history agree.
     history = (await raceB.get(`/api/oil/engines/${spare.id}`)).body.samples
@@ -245,6 +250,149 @@ describe('a constructed history: rate and statistical limits', () => {
     const res = await supplier.put(`/api/oil/limits/${spare.typeId}`, bad)
     expect(res.status).toBe(400)
     expect(res.body.message).toContain('elements.Fe.critical')
+  })
+})
+
+describe('HTHS against the SAE J300 minimum of the grade', () => {
+  it('a sample with HTHS below its grade minimum shows the HTHS check failing in the engine\'s oil assessment', async () => {
+    // SAE J300 (as reproduced): a 5W-40 needs HTHS of at least 3.5 mPa·s at 150 C; 3.3 is below it.
+    const low = await post(raceB, { sampleId: sid('HTHS'), sampledAt: at(0.5), grade: '5W-40', kv40: 90, kv100: 14.0, hths: 3.3 })
+    expect(low.status, JSON.stringify(low.body)).toBe(201)
+    try {
+      const row = await samplesWith([low.body.sampleId]).first()
+      expect(Number(row.hths)).toBe(3.3)
+      const oil = (await raceB.get(`/api/oil/engines/${spare.id}`)).body
+      const seen = oil.samples.find((s: any) => s.sampleId === low.body.sampleId)
+      expect(seen.hths).toBe(3.3)
+      expect(seen.hthsCheck).toEqual({ ok: false, min: 3.5 })
+      expect(seen.gradeBasis).toEqual({ grade: '5W-40', source: 'sample', edition: 'J300-2015' })
+      expect(seen.status).toBe('caution')
+      expect(seen.reasons).toEqual([{ element: 'hths', kind: 'grade', level: 'caution', value: 3.3, limit: 3.5, message: 'HTHS 3.3 mPa·s below the SAE 5W-40 minimum of 3.5 mPa·s (SAE J300)' }])
+    } finally {
+      expect((await raceB.delete(`/api/oil/samples/${low.body.id}`)).status).toBe(204)
+    }
+  })
+
+  it('without a grade on the sample, the engine type\'s grade from the demo new-oil reference is used', async () => {
+    const noGrade = await post(raceB, { sampleId: sid('HTHS'), sampledAt: at(0.6), kv40: 90, kv100: 14.0, hths: 3.4 })
+    const straight = await post(raceB, { sampleId: sid('HTHS'), sampledAt: at(0.7), grade: '15W-40', kv40: 90, kv100: 14.0, hths: 3.6 })
+    try {
+      expect(noGrade.status, JSON.stringify(noGrade.body)).toBe(201)
+      // KV8-45 runs a 5W-40 in the demo: minimum 3.5 (SAE J300, as reproduced), so 3.4 fails.
+      expect(noGrade.body.gradeBasis).toEqual({ grade: '5W-40', source: 'engine type', edition: 'J300-2015' })
+      expect(noGrade.body.hthsCheck).toEqual({ ok: false, min: 3.5 })
+      expect(noGrade.body.reasons.map((r: any) => r.message)).toEqual(["HTHS 3.4 mPa·s below the engine type's SAE 5W-40 minimum of 3.5 mPa·s (SAE J300)"])
+      // A 15W-40 has the higher minimum of 3.7, so 3.6 fails where it would pass a 5W-40.
+      expect(straight.body.hthsCheck).toEqual({ ok: false, min: 3.7 })
+    } finally {
+      for (const r of [noGrade, straight]) if (r.status === 201) await raceB.delete(`/api/oil/samples/${r.body.id}`)
+    }
+  })
+
+  it('refuses an HTHS that is not a viscosity, naming the field', async () => {
+    const id = sid('HTHS')
+    const res = await post(raceB, { sampleId: id, sampledAt: at(0.8), hths: 0 })
+    expect(res.status).toBe(400)
+    expect(res.body.message).toContain('hths: hths must be greater than 0 mPa·s')
+    expect(await samplesWith([id])).toHaveLength(0)
+  })
+})
+
+describe('the new-oil reference of an engine type', () => {
+  it('is edited by the supplier engineer, audited, and moves the KV40 and KV100 change figures', async () => {
+    const original = (await supplier.get(`/api/oil/limits/${spare.typeId}`)).body.limits
+    // The demo seeds a reference for KV8-45, so the change checks run on the demo's samples.
+    expect(original.newOil).toEqual({ grade: '5W-40', kv40: 92, kv100: 14.6, tbn: 8.2 })
+    expect(original.kv40ChangeCautionPct).toBe(25)
+    const s = await post(raceB, { sampleId: sid('REF'), sampledAt: at(0.9), grade: '5W-40', kv40: 126.0, kv100: 14.7 })
+    expect(s.status, JSON.stringify(s.body)).toBe(201)
+    const changeOf = async () => (await raceB.get(`/api/oil/engines/${spare.id}`)).body.samples.find((x: any) => x.id === s.body.id)
+    try {
+      // Against the seeded 92.0 / 14.6: (126 - 92) / 92 = +36.96 %, (14.7 - 14.6) / 14.6 = +0.68 % (hand-worked).
+      let seen = await changeOf()
+      expect(seen.viscosityChange.kv40Pct).toBeCloseTo(36.957, 3)
+      expect(seen.viscosityChange.kv100Pct).toBeCloseTo(0.685, 3)
+
+      const edited = { ...original, newOil: { grade: '5W-40', kv40: 100.0, kv100: 14.0, tbn: 8.2 } }
+      const put = await supplier.put(`/api/oil/limits/${spare.typeId}`, edited)
+      expect(put.status, JSON.stringify(put.body)).toBe(200)
+      expect(put.body.limits.newOil).toEqual({ grade: '5W-40', kv40: 100, kv100: 14, tbn: 8.2 })
+      const entry = await db()('audit_log').where({ entity: 'oil_limits', entity_id: String(spare.typeId), action: 'update' }).orderBy('id', 'desc').first()
+      expect(parseJson(entry.before_value).newOil).toEqual({ grade: '5W-40', kv40: 92, kv100: 14.6, tbn: 8.2 })
+      expect(parseJson(entry.after_value).newOil).toEqual({ grade: '5W-40', kv40: 100, kv100: 14, tbn: 8.2 })
+      const engineer = await db()('users').where('email', USERS.supplierEngineer).first()
+      expect(entry.user_id).toBe(engineer.id)
+
+      // New 100.0, sample 126.0: +26 %, beyond the 25 % caution (common practice); KV100 (14.7 - 14.0) / 14.0 = +5 %.
+      seen = await changeOf()
+      expect(seen.viscosityChange.kv40Pct).toBeCloseTo(26, 6)
+      expect(seen.viscosityChange.kv100Pct).toBeCloseTo(5, 6)
+      expect(seen.status).toBe('caution')
+      expect(seen.reasons).toEqual([{ element: 'kv40', kind: 'change', level: 'caution', value: expect.closeTo(26, 6), limit: 25, message: 'KV40 changed +26 % from new oil, beyond the caution limit of 25 %' }])
+
+      // New 120.0: 126 / 120 is +5 %, within the caution; KV100 14.7 against 14.7 is no change.
+      expect((await supplier.put(`/api/oil/limits/${spare.typeId}`, { ...original, newOil: { grade: '5W-40', kv40: 120.0, kv100: 14.7, tbn: null } })).status).toBe(200)
+      seen = await changeOf()
+      expect(seen.viscosityChange.kv40Pct).toBeCloseTo(5, 6)
+      expect(seen.viscosityChange.kv100Pct).toBeCloseTo(0, 9)
+      expect(seen.status).toBe('normal')
+    } finally {
+      expect((await supplier.put(`/api/oil/limits/${spare.typeId}`, original)).status).toBe(200)
+      await raceB.delete(`/api/oil/samples/${s.body.id}`)
+    }
+    expect((await supplier.get(`/api/oil/limits/${spare.typeId}`)).body.limits).toEqual(original)
+  })
+
+  it('refuses a reference that cannot be new oil, naming the field, and a team\'s edit, changing nothing', async () => {
+    const original = (await supplier.get(`/api/oil/limits/${spare.typeId}`)).body.limits
+    const auditsBefore = (await db()('audit_log').where({ entity: 'oil_limits' }).count({ n: '*' }))[0]!.n
+    const thick = await supplier.put(`/api/oil/limits/${spare.typeId}`, { ...original, newOil: { grade: '5W-40', kv40: 14, kv100: 14.6, tbn: null } })
+    expect(thick.status).toBe(400)
+    expect(thick.body.message).toContain('newOil.kv100: kv100 must be lower than kv40')
+    const grade = await supplier.put(`/api/oil/limits/${spare.typeId}`, { ...original, newOil: { ...original.newOil, grade: '5W-45' } })
+    expect(grade.status).toBe(400)
+    expect(grade.body.message).toContain('newOil.grade')
+    expect((await raceB.put(`/api/oil/limits/${spare.typeId}`, { ...original, newOil: null })).status).toBe(403)
+    expect((await supplier.get(`/api/oil/limits/${spare.typeId}`)).body.limits).toEqual(original)
+    expect((await db()('audit_log').where({ entity: 'oil_limits' }).count({ n: '*' }))[0]!.n).toBe(auditsBefore)
+  })
+})
+
+describe('particle counts in a lab file per 100 mL', () => {
+  const HEADER = 'Unit ID,Sample No,Date Sampled,HTHS 150C,>4 um,>6 um,>14 um'
+  const MAPPING = { 'Unit ID': 'engineSerial', 'Sample No': 'sampleId', 'Date Sampled': 'sampledAt', 'HTHS 150C': 'hths', '>4 um': 'p4', '>6 um': 'p6', '>14 um': 'p14' }
+
+  it('are divided by 100 on import, so the ISO 4406 code is the one of the same counts per mL; the basis is kept with the lab layout', async () => {
+    const id = sid('P100')
+    const lab = `Hundred lab ${stamp}`
+    const csv = [HEADER, ['KV8-1203', id, at(0.95), '3.9', '300000', '50000', '700'].join(',')].join('\n')
+    const res = await raceB.post('/api/oil/import', { lab, csv, mapping: MAPPING, particleBasis: 'per_100ml', saveMapping: true })
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    const row = await samplesWith([id]).first()
+    created.push(row.id)
+    // ISO 4406:1999 worked example, as reproduced: 300,000 / 50,000 / 700 per 100 mL is 19/16/10.
+    expect([Number(row.p4), Number(row.p6), Number(row.p14), Number(row.hths)]).toEqual([3000, 500, 7, 3.9])
+    const sample = (await raceB.get(`/api/oil/samples/${row.id}`)).body
+    expect(sample.iso4406).toBe('19/16/10')
+    const saved = (await raceB.get('/api/oil/mappings')).body.find((m: any) => m.lab === lab)
+    expect(saved).toMatchObject({ mapping: MAPPING, particleBasis: 'per_100ml' })
+    const audit = await db()('audit_log').where({ entity: 'oil_import', entity_id: lab }).first()
+    expect(parseJson(audit.after_value).particleBasis).toBe('per_100ml')
+  })
+
+  it('are read per mL when the file states no basis, and an unknown basis is refused by name', async () => {
+    const id = sid('P1')
+    const csv = [HEADER, ['KV8-1203', id, at(0.97), '', '3000', '500', '7'].join(',')].join('\n')
+    const bad = await raceB.post('/api/oil/import', { lab: 'Test lab', csv, mapping: MAPPING, particleBasis: 'per_litre' })
+    expect(bad.status).toBe(400)
+    expect(bad.body.message).toContain('particleBasis')
+    expect(await samplesWith([id])).toHaveLength(0)
+    const res = await raceB.post('/api/oil/import', { lab: 'Test lab', csv, mapping: MAPPING })
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    const row = await samplesWith([id]).first()
+    created.push(row.id)
+    expect([Number(row.p4), Number(row.p6), Number(row.p14), row.hths]).toEqual([3000, 500, 7, null])
+    expect((await raceB.get(`/api/oil/samples/${row.id}`)).body.iso4406).toBe('19/16/10')
   })
 })
 

@@ -6,7 +6,7 @@ import { assessEngineHistory, assessLatest, leaveOneOutLimits, populationLimitsE
 function sample(id: string, over: Partial<OilSampleValues> = {}): OilSampleValues {
   return {
     sampleId: id, sampledAt: '2026-06-01', engineHours: null, oilHours: null, elements: {},
-    kv40: null, kv100: null, fuelDilutionPct: null, waterPct: null, p4: null, p6: null, p14: null, grade: null,
+    kv40: null, kv100: null, hths: null, fuelDilutionPct: null, waterPct: null, p4: null, p6: null, p14: null, grade: null,
     ...over,
   }
 }
@@ -52,9 +52,14 @@ describe('assessEngineHistory (cases built with known answers)', () => {
     expect(out[2]!.assessment.status).toBe('normal')
   })
 
-  it('assessLatest equals the last entry of the history', () => {
-    const all = assessEngineHistory(history, NO_STATS, history)
-    expect(assessLatest(history, NO_STATS, history)).toEqual(all[all.length - 1])
+  it('assessLatest reads the newest sample against the one before it: s3 after s2, 70 ppm per 10 h', () => {
+    const latest = assessLatest(history, NO_STATS, history)!
+    expect(latest.values.sampleId).toBe('s3')
+    expect(latest.previousSampleId).toBe('s2')
+    expect(latest.assessment.status).toBe('critical')
+    expect(latest.assessment.reasons).toHaveLength(1)
+    expect(latest.assessment.reasons[0]).toMatchObject({ element: 'Fe', kind: 'rate', level: 'critical', limit: 40 })
+    expect(latest.assessment.reasons[0]!.value).toBeCloseTo(70, 10)
     expect(assessLatest([], NO_STATS, history)).toBeNull()
   })
 })
@@ -99,17 +104,27 @@ describe('leaveOneOutLimits', () => {
   }))
   population.push(sample('only-one', { elements: { Ni: 2 } }))
 
-  it.each(['sigma', 'percentile'] as const)('agrees with populationLimits on the rest of the population (%s)', (method) => {
+  it.each(['sigma', 'percentile'] as const)('matches simple-statistics on the rest of the population for every element (%s)', (method) => {
     const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, statistical: { ...DEFAULT_OIL_LIMITS.statistical, method } }
     const fast = leaveOneOutLimits(population, limits)
     for (const id of ['r0', 'r1', 'r30', 'only-one', 'not-in-population']) {
-      const expected = populationLimitsExcluding(population, id, limits)
+      const rest = population.filter((s) => s.sampleId !== id)
       const got = fast(id)
-      expect(got.map((p) => [p.element, p.n, p.active])).toEqual(expected.map((p) => [p.element, p.n, p.active]))
-      got.forEach((p, i) => {
-        const e = expected[i]!
-        for (const k of ['mean', 'sd', 'caution', 'critical'] as const) expect(p[k]).toBeCloseTo(e[k], 9)
-      })
+      // Elements in the order of OIL_ELEMENTS that still have a reading once the sample is left out.
+      const expectedElements = (['Fe', 'Cu', 'Ni', 'Ca'] as const).filter((e) => rest.some((s) => s.elements[e] !== undefined))
+      expect(got.map((p) => p.element)).toEqual(expectedElements)
+      for (const p of got) {
+        const xs = rest.map((s) => s.elements[p.element]).filter((x): x is number => x !== undefined)
+        const sd = xs.length >= 2 ? ss.sampleStandardDeviation(xs) : 0
+        expect(p.n).toBe(xs.length)
+        expect(p.active).toBe(xs.length >= limits.statistical.minSamples)
+        expect(p.mean).toBeCloseTo(ss.mean(xs), 9)
+        expect(p.sd).toBeCloseTo(sd, 9)
+        const caution = method === 'sigma' ? ss.mean(xs) + 2 * sd : ss.quantile(xs, 0.95)
+        const critical = method === 'sigma' ? ss.mean(xs) + 3 * sd : ss.quantile(xs, 0.98)
+        expect(p.caution).toBeCloseTo(caution, 9)
+        expect(p.critical).toBeCloseTo(critical, 9)
+      }
     }
   })
 

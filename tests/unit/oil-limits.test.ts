@@ -14,6 +14,8 @@ import {
   type OilSampleValues,
 } from '../../shared/domain/oil/limits'
 import { oilSampleSchema } from '../../shared/domain/oil/schema'
+import { OilLimitsSchema } from '../../shared/schemas/oil'
+import { downgradeLimits, upgradeLimits } from '../../db/migrations/20261203_03_c_oil_new_reference'
 
 const HAND = [10, 12, 14, 16, 18]
 
@@ -35,6 +37,7 @@ function sample(id: string, over: Partial<OilSampleValues> = {}): OilSampleValue
     elements: {},
     kv40: null,
     kv100: null,
+    hths: null,
     fuelDilutionPct: null,
     waterPct: null,
     p4: null,
@@ -189,9 +192,10 @@ describe('assessSample: a constructed sample history', () => {
     const jump = sample('S5', { engineHours: 150, oilHours: 50, elements: { Fe: 75 } })
     const a = assessSample(jump, history[3]!, DEFAULT_OIL_LIMITS, activePop)
     const stat = a.reasons.find((r) => r.kind === 'statistical')!
-    const fe = activePop.find((p) => p.element === 'Fe')!
+    // mean + 3 s of the population's iron, from simple-statistics rather than the product's own figures
+    const fe = population(30).map((s) => s.elements.Fe!)
     expect(stat).toMatchObject({ element: 'Fe', level: 'critical', value: 75 })
-    expect(stat.limit).toBeCloseTo(fe.critical, 9)
+    expect(stat.limit).toBeCloseTo(ss.mean(fe) + 3 * ss.sampleStandardDeviation(fe), 9)
     expect(a.status).toBe('critical')
   })
 
@@ -278,13 +282,17 @@ describe('assessSample: absolute limits and the other checks', () => {
   })
 
   it('KV100 change from new oil beyond 15 % (common practice)', () => {
-    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOilKv100: 14.0 }
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: null, kv40: null, kv100: 14.0, tbn: null } }
     const a = assessSample(sample('A1', { kv100: 11.5 }), null, limits, [])
     expect(a.reasons).toHaveLength(1)
-    expect(a.reasons[0]!.element).toBe('kv100')
-    expect(a.reasons[0]!.value).toBeCloseTo(((11.5 - 14) / 14) * 100, 9)
-    // -10 % is within 15 %
-    expect(assessSample(sample('A1', { kv100: 12.6 }), null, limits, []).status).toBe('normal')
+    // hand-worked: (11.5 - 14.0) / 14.0 = -2.5 / 14 = -17.857 %
+    expect(a.reasons[0]).toMatchObject({ element: 'kv100', kind: 'change', level: 'caution', limit: 15 })
+    expect(a.reasons[0]!.value).toBeCloseTo(-17.857, 3)
+    expect(a.reasons[0]!.message).toBe('KV100 changed -17.9 % from new oil, beyond the caution limit of 15 %')
+    // 12.6 is -1.4 / 14 = -10 %, within 15 %
+    const within = assessSample(sample('A1', { kv100: 12.6 }), null, limits, [])
+    expect(within.status).toBe('normal')
+    expect(within.viscosityChange.kv100Pct).toBeCloseTo(-10, 9)
   })
 
   it('reports the ISO 4406 code, the viscosity index and the grade check', () => {
@@ -295,12 +303,115 @@ describe('assessSample: absolute limits and the other checks', () => {
     expect(a.iso4406).toBe('19/16/>=10')
     expect(a.viscosityIndex).toBe(92) // ASTM D2270 procedure A example, as reproduced
     expect(a.gradeCheck).toEqual({ ok: true, min: 6.9, max: 9.3 })
+    expect(a.grade).toEqual({ grade: '0W-20', source: 'sample', edition: 'J300-2015' })
+    // no HTHS measured, no new-oil reference: those checks do not run
+    expect(a.hthsCheck).toBeNull()
+    expect(a.viscosityChange).toEqual({ kv40Pct: null, kv100Pct: null })
     expect(a.status).toBe('normal')
   })
 
   it('viscosity index is null where it is not defined', () => {
     expect(assessSample(sample('A1', { kv40: 5, kv100: 1.5 }), null, DEFAULT_OIL_LIMITS, []).viscosityIndex).toBeNull()
     expect(assessSample(sample('A1', { kv40: 70 }), null, DEFAULT_OIL_LIMITS, []).viscosityIndex).toBeNull()
+  })
+})
+
+// Change limits of common practice: KV40 caution above 25 %, KV100 above 15 % (either way).
+describe('viscosity change from the new-oil reference (common practice: KV40 25 %, KV100 15 %)', () => {
+  const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: null, kv40: 100.0, kv100: 14.0, tbn: 9.0 } }
+
+  it('new KV40 100.0, sample 126.0: +26 %, above the 25 % caution (hand-worked)', () => {
+    const a = assessSample(sample('V1', { kv40: 126.0 }), null, limits, [])
+    expect(a.viscosityChange.kv40Pct).toBeCloseTo(26, 9)
+    expect(a.status).toBe('caution')
+    expect(a.reasons).toHaveLength(1)
+    expect(a.reasons[0]).toMatchObject({ element: 'kv40', kind: 'change', level: 'caution', limit: 25 })
+    expect(a.reasons[0]!.value).toBeCloseTo(26, 9)
+    expect(a.reasons[0]!.message).toBe('KV40 changed +26 % from new oil, beyond the caution limit of 25 %')
+  })
+
+  it('new KV40 100.0, sample 125.0: +25 %, at the limit, which is not beyond it', () => {
+    const a = assessSample(sample('V2', { kv40: 125.0 }), null, limits, [])
+    expect(a.viscosityChange.kv40Pct).toBeCloseTo(25, 9)
+    expect(a.status).toBe('normal')
+  })
+
+  it('new KV40 100.0, sample 74.0: -26 %, thinner counts as well (hand-worked)', () => {
+    const a = assessSample(sample('V3', { kv40: 74.0 }), null, limits, [])
+    expect(a.reasons[0]!.value).toBeCloseTo(-26, 9)
+    expect(a.reasons[0]!.message).toBe('KV40 changed -26 % from new oil, beyond the caution limit of 25 %')
+  })
+
+  it('both figures at once: KV40 130.0 (+30 %) and KV100 16.8 (+20 %) give two reasons (hand-worked)', () => {
+    const a = assessSample(sample('V4', { kv40: 130.0, kv100: 16.8 }), null, limits, [])
+    expect(a.viscosityChange.kv40Pct).toBeCloseTo(30, 9)
+    expect(a.viscosityChange.kv100Pct).toBeCloseTo(20, 9)
+    expect(a.reasons.map((r) => [r.element, r.kind, r.limit])).toEqual([['kv40', 'change', 25], ['kv100', 'change', 15]])
+  })
+
+  it('a demo-like sample: new 92.0 / 14.6, sample 89.7 / 14.2 gives -2.5 % and -2.74 %, normal (hand-worked)', () => {
+    const ref: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: '5W-40', kv40: 92.0, kv100: 14.6, tbn: 8.2 } }
+    const a = assessSample(sample('V5', { kv40: 89.7, kv100: 14.2 }), null, ref, [])
+    // -2.3 / 92 = -0.025; -0.4 / 14.6 = -0.027397
+    expect(a.viscosityChange.kv40Pct).toBeCloseTo(-2.5, 9)
+    expect(a.viscosityChange.kv100Pct).toBeCloseTo(-2.7397, 4)
+    expect(a.status).toBe('normal')
+  })
+
+  it('no change figure without the reference figure or the sample figure; no reason without a limit', () => {
+    expect(assessSample(sample('V6', { kv40: 126 }), null, DEFAULT_OIL_LIMITS, []).viscosityChange).toEqual({ kv40Pct: null, kv100Pct: null })
+    const onlyKv100: OilLimits = { ...limits, newOil: { grade: null, kv40: null, kv100: 14.0, tbn: null } }
+    expect(assessSample(sample('V7', { kv40: 126, kv100: 14.7 }), null, onlyKv100, []).viscosityChange.kv40Pct).toBeNull()
+    const noLimit: OilLimits = { ...limits, kv40ChangeCautionPct: null }
+    const a = assessSample(sample('V8', { kv40: 126 }), null, noLimit, [])
+    expect(a.viscosityChange.kv40Pct).toBeCloseTo(26, 9)
+    expect(a.reasons).toEqual([])
+  })
+})
+
+// HTHS minimums at 150 C from SAE J300 (as reproduced in check-values.md).
+describe('HTHS against the SAE J300 minimum of the grade in the assessment', () => {
+  it('5W-40 on the sample, HTHS 3.4 mPa s: below the 3.5 minimum, a caution naming grade and minimum', () => {
+    const a = assessSample(sample('H1', { grade: '5W-40', hths: 3.4 }), null, DEFAULT_OIL_LIMITS, [])
+    expect(a.hthsCheck).toEqual({ ok: false, min: 3.5 })
+    expect(a.status).toBe('caution')
+    expect(a.reasons).toEqual([{ element: 'hths', kind: 'grade', level: 'caution', value: 3.4, limit: 3.5, message: 'HTHS 3.4 mPa·s below the SAE 5W-40 minimum of 3.5 mPa·s (SAE J300)' }])
+  })
+
+  it('5W-40, HTHS 3.5: the minimum itself passes', () => {
+    const a = assessSample(sample('H2', { grade: '5W-40', hths: 3.5 }), null, DEFAULT_OIL_LIMITS, [])
+    expect(a.hthsCheck).toEqual({ ok: true, min: 3.5 })
+    expect(a.status).toBe('normal')
+  })
+
+  it('a sample without a grade is judged by the engine type\'s grade from the new-oil reference (15W-40: 3.7)', () => {
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: '15W-40', kv40: null, kv100: null, tbn: null } }
+    const a = assessSample(sample('H3', { hths: 3.6, kv100: 14.0 }), null, limits, [])
+    expect(a.grade).toEqual({ grade: '15W-40', source: 'engine type', edition: 'J300-2015' })
+    expect(a.hthsCheck).toEqual({ ok: false, min: 3.7 })
+    expect(a.gradeCheck).toEqual({ ok: true, min: 12.5, max: 16.3 })
+    expect(a.reasons.map((r) => r.message)).toEqual(["HTHS 3.6 mPa·s below the engine type's SAE 15W-40 minimum of 3.7 mPa·s (SAE J300)"])
+  })
+
+  it('the sample\'s own grade wins over the engine type\'s: 10W-40 needs 3.5, so 3.6 passes', () => {
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: '15W-40', kv40: null, kv100: null, tbn: null } }
+    const a = assessSample(sample('H4', { grade: '10W-40', hths: 3.6 }), null, limits, [])
+    expect(a.grade!.source).toBe('sample')
+    expect(a.hthsCheck).toEqual({ ok: true, min: 3.5 })
+  })
+
+  it('no grade anywhere: no HTHS check', () => {
+    const a = assessSample(sample('H5', { hths: 1.0 }), null, DEFAULT_OIL_LIMITS, [])
+    expect(a.grade).toBeNull()
+    expect(a.hthsCheck).toBeNull()
+    expect(a.status).toBe('normal')
+  })
+
+  it('KV100 out of the engine type\'s grade when the sample gives none (0W-30: 9.3 to below 12.5)', () => {
+    const limits: OilLimits = { ...DEFAULT_OIL_LIMITS, newOil: { grade: '0W-30', kv40: null, kv100: null, tbn: null } }
+    const a = assessSample(sample('H6', { kv100: 9.1 }), null, limits, [])
+    expect(a.gradeCheck).toEqual({ ok: false, min: 9.3, max: 12.5 })
+    expect(a.reasons[0]!.message).toBe("KV100 9.1 mm²/s below the engine type's SAE 0W-30 minimum of 9.3 mm²/s")
   })
 })
 
@@ -319,6 +430,8 @@ describe('DEFAULT_OIL_LIMITS (demo defaults, common practice for petrol engines)
     expect(DEFAULT_OIL_LIMITS.fuelDilutionCautionPct).toBe(5)
     expect(DEFAULT_OIL_LIMITS.waterCautionPct).toBe(0.1)
     expect(DEFAULT_OIL_LIMITS.kv100ChangeCautionPct).toBe(15)
+    expect(DEFAULT_OIL_LIMITS.kv40ChangeCautionPct).toBe(25)
+    expect(DEFAULT_OIL_LIMITS.newOil).toBeNull()
     expect(DEFAULT_OIL_LIMITS.statistical).toMatchObject({ minSamples: 30, method: 'sigma', cautionSigma: 2, criticalSigma: 3 })
   })
 
@@ -343,6 +456,7 @@ describe('oilSampleSchema', () => {
     p4: 3000,
     p6: 500,
     p14: 7,
+    hths: 3.1,
     grade: '5W-30',
   }
 
@@ -402,6 +516,14 @@ describe('oilSampleSchema', () => {
     expect(oilSampleSchema({ now: ctx.now, builtAt: null }).safeParse({ ...good, sampledAt: '2024-01-10' }).success).toBe(true)
   })
 
+  it('refuses an HTHS of zero or above 100 mPa s, naming the field; a blank HTHS is no reading', () => {
+    expect(issues({ ...good, hths: 0 })[0]).toEqual({ path: 'hths', message: 'hths must be greater than 0 mPa·s' })
+    expect(issues({ ...good, hths: 350 })[0]).toEqual({ path: 'hths', message: 'hths must be at most 100 mPa·s' })
+    expect(issues({ ...good, hths: 'thick' })[0]!.path).toBe('hths')
+    expect(schema.parse({ ...good, hths: '' }).hths).toBeNull()
+    expect(schema.parse({ ...good, hths: ' 3.55 ' }).hths).toBe(3.55)
+  })
+
   it('refuses oil hours above engine hours, negative hours and an unknown grade', () => {
     expect(issues({ ...good, oilHours: 200 })[0]!.path).toBe('oilHours')
     expect(issues({ ...good, engineHours: -1 })[0]).toEqual({ path: 'engineHours', message: 'engineHours cannot be below 0 h' })
@@ -416,5 +538,43 @@ describe('oilSampleSchema', () => {
 
   it('refuses a missing sample id', () => {
     expect(issues({ ...good, sampleId: '  ' })[0]).toEqual({ path: 'sampleId', message: 'sampleId is required' })
+  })
+})
+
+describe('stored limits written before the new-oil reference', () => {
+  it('upgrade: the new oil KV100 moves into the reference, the KV40 limit takes 25 % (common practice), and the result reads as limits', () => {
+    const { newOilKv100: _old, newOil: _n, kv40ChangeCautionPct: _k, ...rest } = { ...DEFAULT_OIL_LIMITS, newOilKv100: 14.2 } as Record<string, unknown>
+    const old = { ...rest, newOilKv100: 14.2 }
+    const upgraded = upgradeLimits(old)
+    expect(upgraded).not.toHaveProperty('newOilKv100')
+    expect(upgraded.newOil).toEqual({ grade: null, kv40: null, kv100: 14.2, tbn: null })
+    expect(upgraded.kv40ChangeCautionPct).toBe(25)
+    expect(OilLimitsSchema.safeParse(upgraded).success).toBe(true)
+    expect(upgradeLimits({ ...rest, newOilKv100: null }).newOil).toBeNull()
+    // already upgraded: unchanged
+    expect(upgradeLimits(upgraded)).toEqual(upgraded)
+    expect(downgradeLimits(upgraded)).toEqual(old)
+  })
+})
+
+describe('OilLimitsSchema: the new-oil reference', () => {
+  const base = { ...DEFAULT_OIL_LIMITS, elements: {}, statistical: { ...DEFAULT_OIL_LIMITS.statistical } }
+  const issuesOf = (newOil: unknown) => {
+    const r = OilLimitsSchema.safeParse({ ...base, newOil })
+    return r.success ? [] : r.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`)
+  }
+
+  it('accepts a full reference, a partial one and none; an empty grade is no grade', () => {
+    expect(issuesOf({ grade: '5W-40', kv40: 92, kv100: 14.6, tbn: 8.2 })).toEqual([])
+    expect(issuesOf({ grade: null, kv40: null, kv100: 14.6, tbn: null })).toEqual([])
+    expect(issuesOf(null)).toEqual([])
+    expect(OilLimitsSchema.parse({ ...base, newOil: { grade: '', kv40: 92, kv100: 14.6, tbn: null } }).newOil!.grade).toBeNull()
+  })
+
+  it('names the field of a bad reference', () => {
+    expect(issuesOf({ grade: '5W-45', kv40: 92, kv100: 14.6, tbn: null })).toEqual(['newOil.grade: grade must be an SAE J300 grade such as 5W-40 or 40'])
+    expect(issuesOf({ grade: null, kv40: 14, kv100: 14.6, tbn: null })).toEqual(['newOil.kv100: kv100 must be lower than kv40: oil thins as it warms'])
+    expect(issuesOf({ grade: null, kv40: -1, kv100: null, tbn: null })).toEqual(['newOil.kv40: kv40 must be positive'])
+    expect(issuesOf({ grade: null, kv40: null, kv100: null, tbn: 'nine' })).toEqual(['newOil.tbn: tbn must be a number of mg KOH/g'])
   })
 })

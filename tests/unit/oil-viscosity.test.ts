@@ -2,7 +2,9 @@ import { describe, expect, it } from 'vitest'
 import {
   D2270_TABLE,
   SAE_J300,
+  SAE_J300_EDITIONS,
   fitWalther,
+  hthsInGrade,
   hthsMinFor,
   kv100InGrade,
   lookupLH,
@@ -149,8 +151,10 @@ describe('ASTM D2270 viscosity index', () => {
 })
 
 describe('SAE J300 grades', () => {
-  it('keeps the table as versioned data', () => {
+  it('keeps the table as versioned data, one entry per edition', () => {
     expect(SAE_J300.edition).toMatch(/J300/)
+    expect(SAE_J300_EDITIONS[SAE_J300.id]).toBe(SAE_J300)
+    for (const [id, table] of Object.entries(SAE_J300_EDITIONS)) expect(table.id).toBe(id)
     expect(Object.keys(SAE_J300.grades).sort((a, b) => Number(a) - Number(b))).toEqual(['8', '12', '16', '20', '30', '40', '50', '60'])
   })
 
@@ -184,11 +188,50 @@ describe('SAE J300 grades', () => {
     expect(parseGrade('forty')).toBeNull()
   })
 
+  it('reads the ways a multigrade is written: 10W40, 10w/40, SAE 10W–40 (en dash)', () => {
+    for (const g of ['10W40', '10w/40', 'SAE 10W\u201340', ' 10 W - 40 ']) expect(parseGrade(g), g).toEqual({ winter: '10W', summer: '40' })
+    expect(parseGrade('10W--40')).toBeNull()
+  })
+
   it('a multigrade is judged on its summer grade', () => {
     expect(kv100InGrade('5W-40', 14.1)).toEqual({ ok: true, min: 12.5, max: 16.3 })
     expect(kv100InGrade('5W-40', 11.9)).toEqual({ ok: false, min: 12.5, max: 16.3 })
     expect(kv100InGrade('10W-60', 26.1)!.ok).toBe(false)
     expect(kv100InGrade('nonsense', 10)).toBeNull()
+  })
+
+  // HTHS minimums at 150 C, mPa s, SAE J300 as reproduced in check-values.md (grade 12 from memory).
+  // Each grade: the minimum passes, just below it fails, and a typical reading passes.
+  it.each([
+    ['0W-8', 1.7, 1.69, 1.9],
+    ['0W-12', 2.0, 1.99, 2.2], // from memory
+    ['0W-16', 2.3, 2.29, 2.5],
+    ['0W-20', 2.6, 2.59, 2.7],
+    ['5W-30', 2.9, 2.89, 3.1],
+    ['30', 2.9, 2.8, 3.3],
+    ['0W-40', 3.5, 3.49, 3.6],
+    ['5W-40', 3.5, 3.4, 3.9],
+    ['10W-40', 3.5, 3.45, 3.55],
+    ['15W-40', 3.7, 3.6, 4.1],
+    ['20W-40', 3.7, 3.65, 3.8],
+    ['25W-40', 3.7, 3.5, 4.0],
+    ['40', 3.7, 3.69, 4.0],
+    ['10W-50', 3.7, 3.6, 4.3],
+    ['10W-60', 3.7, 3.6, 4.8],
+  ])('SAE %s: HTHS minimum %f mPa s; %f fails, %f passes (SAE J300, as reproduced)', (grade, min, below, typical) => {
+    expect(hthsMinFor(grade)).toBe(min)
+    expect(hthsInGrade(grade, min)).toEqual({ ok: true, min })
+    expect(hthsInGrade(grade, below)).toEqual({ ok: false, min })
+    expect(hthsInGrade(grade, typical)).toEqual({ ok: true, min })
+  })
+
+  it('the 40 split: 3.6 mPa s passes a 10W-40 (3.5) and fails a 15W-40 and a straight 40 (3.7) (SAE J300, as reproduced)', () => {
+    expect(hthsInGrade('10W-40', 3.6)!.ok).toBe(true)
+    expect(hthsInGrade('15W-40', 3.6)!.ok).toBe(false)
+    expect(hthsInGrade('40', 3.6)!.ok).toBe(false)
+    expect(hthsInGrade('SAE 10W40', 3.6)).toEqual({ ok: true, min: 3.5 })
+    expect(hthsInGrade('5W-45', 3.6)).toBeNull()
+    expect(hthsInGrade('5W-40', Number.NaN)).toEqual({ ok: false, min: 3.5 })
   })
 
   it('HTHS minimum of a 40 depends on the winter grade (SAE J300, as reproduced)', () => {

@@ -4,10 +4,11 @@
  * the same way.
  */
 import { OIL_ELEMENTS } from './limits'
+import { particlesPerMl } from './iso4406'
 
 export const OIL_CSV_FIELDS = [
   'engineSerial', 'sampleId', 'sampledAt', 'engineHours', 'oilHours', 'grade', 'oilChanged',
-  'kv40', 'kv100', 'fuelDilutionPct', 'waterPct', 'p4', 'p6', 'p14',
+  'kv40', 'kv100', 'hths', 'fuelDilutionPct', 'waterPct', 'p4', 'p6', 'p14',
   ...OIL_ELEMENTS,
 ] as const
 export type OilCsvField = typeof OIL_CSV_FIELDS[number]
@@ -45,6 +46,7 @@ const ALIASES: Record<string, OilCsvField> = {
   'oil changed': 'oilChanged', 'oil change': 'oilChanged',
   'kv40': 'kv40', 'visc 40': 'kv40', 'visc 40c': 'kv40', 'viscosity 40': 'kv40', 'viscosity 40c': 'kv40',
   'kv100': 'kv100', 'visc 100': 'kv100', 'visc 100c': 'kv100', 'viscosity 100': 'kv100', 'viscosity 100c': 'kv100',
+  'hths': 'hths', 'hths 150': 'hths', 'hths 150c': 'hths', 'hths viscosity': 'hths', 'hths mpa s': 'hths', 'hths cp': 'hths',
   'fuel': 'fuelDilutionPct', 'fuel dilution': 'fuelDilutionPct', 'fuel %': 'fuelDilutionPct', 'fuel dilution %': 'fuelDilutionPct',
   'water': 'waterPct', 'water %': 'waterPct',
   'p4': 'p4', '4 um': 'p4', '>4 um': 'p4', 'p6': 'p6', '6 um': 'p6', '>6 um': 'p6', 'p14': 'p14', '14 um': 'p14', '>14 um': 'p14',
@@ -93,5 +95,39 @@ export function applyMapping(headers: string[], cells: string[], mapping: OilCsv
     if (!field || field === 'ignore') return
     out[field] = (cells[i] ?? '').trim()
   })
+  return out
+}
+
+// ------------------------------------------------------ particle counts
+
+/**
+ * Volume a lab's particle counts refer to. ISO 4406 scale numbers are defined
+ * per mL; many labs print counts per 100 mL, which read as per mL would be a
+ * hundred times too dirty (about seven scale numbers).
+ */
+export const PARTICLE_BASES = ['per_ml', 'per_100ml'] as const
+export type ParticleBasis = typeof PARTICLE_BASES[number]
+export const PARTICLE_BASIS_ML: Record<ParticleBasis, number> = { per_ml: 1, per_100ml: 100 }
+export const PARTICLE_BASIS_LABEL: Record<ParticleBasis, string> = { per_ml: 'per mL', per_100ml: 'per 100 mL' }
+export const DEFAULT_PARTICLE_BASIS: ParticleBasis = 'per_ml'
+
+const PARTICLE_FIELDS = ['p4', 'p6', 'p14'] as const
+
+/**
+ * A mapped row with its particle counts turned into particles per mL. A cell
+ * that is empty or not a plain non-negative number is passed on untouched, so
+ * the sample schema names it as it would any other bad cell.
+ */
+export function countsPerMl(record: Partial<Record<OilCsvField, string>>, basis: ParticleBasis): Partial<Record<OilCsvField, string>> {
+  const volume = PARTICLE_BASIS_ML[basis]
+  if (volume === 1) return record
+  const out = { ...record }
+  for (const f of PARTICLE_FIELDS) {
+    const cell = out[f]
+    if (cell === undefined || cell.trim() === '') continue
+    const n = Number(cell.trim())
+    if (!Number.isFinite(n) || n < 0) continue
+    out[f] = String(particlesPerMl(n, volume))
+  }
   return out
 }

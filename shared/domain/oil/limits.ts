@@ -1,13 +1,15 @@
 /**
- * Oil sample assessment: absolute limits, rate of change per 10 hours and
- * statistical limits from the population of an engine type.
+ * Oil sample assessment: absolute limits, rate of change per 10 hours,
+ * statistical limits from the population of an engine type, the SAE J300
+ * grade (KV100 range and HTHS minimum) and the viscosity change from the
+ * engine type's new-oil reference.
  *
  * These figures are an aid to the supplier's service instructions, inspection
  * and licensed practice, never a substitute: a 'normal' sample does not clear
  * an engine to run, and trends matter more than any single value.
  */
 import { iso4406 } from './iso4406'
-import { kv100InGrade, viscosityIndex } from './viscosity'
+import { SAE_J300, hthsInGrade, kv100InGrade, parseGrade, viscosityIndex } from './viscosity'
 
 export const OIL_ELEMENTS = ['Fe', 'Cu', 'Pb', 'Al', 'Cr', 'Sn', 'Ni', 'Si', 'Na', 'K', 'Mo', 'B', 'Zn', 'P', 'Ca', 'Mg'] as const
 export type OilElement = typeof OIL_ELEMENTS[number]
@@ -28,6 +30,8 @@ export interface OilSampleValues {
   kv40: number | null
   /** kinematic viscosity at 100 C, mm^2/s */
   kv100: number | null
+  /** high-temperature high-shear viscosity at 150 C, mPa s */
+  hths: number | null
   fuelDilutionPct: number | null
   waterPct: number | null
   /** cumulative particles per mL at >= 4 / 6 / 14 um(c) */
@@ -49,14 +53,32 @@ export interface ElementLimit {
   ratePer10hCritical: number | null
 }
 
+/**
+ * The oil the supplier specifies for an engine type, as measured new. The
+ * viscosity changes of every sample are read against it; its grade is the
+ * engine type's grade, used when a sample does not state its own.
+ */
+export interface NewOilReference {
+  /** SAE J300 grade, e.g. '5W-40' */
+  grade: string | null
+  /** mm^2/s */
+  kv40: number | null
+  /** mm^2/s */
+  kv100: number | null
+  /** total base number, mg KOH/g (shown for reference; samples carry no TBN yet) */
+  tbn: number | null
+}
+
 export interface OilLimits {
   elements: Partial<Record<OilElement, ElementLimit>>
   fuelDilutionCautionPct: number | null
   waterCautionPct: number | null
-  /** relative change of KV100 from newOilKv100, percent */
+  /** relative change of KV40 from the new oil, percent, either way */
+  kv40ChangeCautionPct: number | null
+  /** relative change of KV100 from the new oil, percent, either way */
   kv100ChangeCautionPct: number | null
-  /** KV100 of the fresh oil; without it the KV100 change is not checked */
-  newOilKv100?: number | null
+  /** without it (or without the figure) the changes are not checked */
+  newOil: NewOilReference | null
   statistical: {
     enabled: boolean
     minSamples: number
@@ -81,8 +103,9 @@ export interface PopulationLimit {
 }
 
 export interface OilReason {
-  element?: OilElement | 'kv100' | 'fuel' | 'water'
-  kind: 'absolute' | 'rate' | 'statistical' | 'grade'
+  element?: OilElement | 'kv40' | 'kv100' | 'hths' | 'fuel' | 'water'
+  /** 'change' is a change from the new-oil reference */
+  kind: 'absolute' | 'rate' | 'statistical' | 'grade' | 'change'
   level: 'caution' | 'critical'
   value: number
   limit: number
@@ -95,7 +118,21 @@ export interface SampleAssessment {
   reasons: OilReason[]
   iso4406: string | null
   viscosityIndex: number | null
+  /** the grade the sample was judged by: its own, or the engine type's from the new-oil reference */
+  grade: GradeBasis | null
+  /** KV100 against the grade's range */
   gradeCheck: { ok: boolean; min: number; max: number } | null
+  /** HTHS against the grade's minimum */
+  hthsCheck: { ok: boolean; min: number } | null
+  /** percent change from the new-oil reference; null where either figure is missing */
+  viscosityChange: { kv40Pct: number | null; kv100Pct: number | null }
+}
+
+export interface GradeBasis {
+  grade: string
+  source: 'sample' | 'engine type'
+  /** id of the SAE J300 edition the checks used */
+  edition: string
 }
 
 // ------------------------------------------------------------- statistics
@@ -212,6 +249,12 @@ export function hoursBetween(sample: OilSampleValues, previous: OilSampleValues)
   return engineDelta
 }
 
+/** Relative change of a viscosity from the new oil's, percent; null when either is missing. */
+export function changeFromNewPct(value: number | null, newOil: number | null): number | null {
+  if (value === null || newOil === null || !(newOil > 0) || !Number.isFinite(value)) return null
+  return ((value - newOil) / newOil) * 100
+}
+
 /** Assesses one sample. previous = the same engine's previous sample, or null. */
 export function assessSample(sample: OilSampleValues, previous: OilSampleValues | null, limits: OilLimits, population: PopulationLimit[]): SampleAssessment {
   const reasons: OilReason[] = []
@@ -271,29 +314,54 @@ export function assessSample(sample: OilSampleValues, previous: OilSampleValues 
     })
   }
 
+  const reference = limits.newOil ?? null
+  // The sample's own grade is what was in the engine; the type's specified grade stands in when the lab gave none.
+  const sampleGrade = sample.grade && parseGrade(sample.grade) ? sample.grade : null
+  const refGrade = reference?.grade && parseGrade(reference.grade) ? reference.grade : null
+  const grade: GradeBasis | null = sampleGrade
+    ? { grade: sampleGrade, source: 'sample', edition: SAE_J300.id }
+    : refGrade ? { grade: refGrade, source: 'engine type', edition: SAE_J300.id } : null
+  const gradeName = grade ? `${grade.source === 'engine type' ? "engine type's " : ''}SAE ${grade.grade}` : ''
+
   let gradeCheck: SampleAssessment['gradeCheck'] = null
-  if (sample.kv100 !== null) {
-    if (sample.grade) {
-      gradeCheck = kv100InGrade(sample.grade, sample.kv100)
-      if (gradeCheck && !gradeCheck.ok) {
-        const low = sample.kv100 < gradeCheck.min
-        const limit = low ? gradeCheck.min : gradeCheck.max
-        reasons.push({
-          element: 'kv100', kind: 'grade', level: 'caution', value: sample.kv100, limit,
-          message: `KV100 ${formatFigure(sample.kv100)} mm²/s ${low ? 'below' : 'at or above'} the SAE ${sample.grade} ${low ? 'minimum' : 'upper bound'} of ${formatFigure(limit)} mm²/s`,
-        })
-      }
+  if (sample.kv100 !== null && grade) {
+    gradeCheck = kv100InGrade(grade.grade, sample.kv100)
+    if (gradeCheck && !gradeCheck.ok) {
+      const low = sample.kv100 < gradeCheck.min
+      const limit = low ? gradeCheck.min : gradeCheck.max
+      reasons.push({
+        element: 'kv100', kind: 'grade', level: 'caution', value: sample.kv100, limit,
+        message: `KV100 ${formatFigure(sample.kv100)} mm²/s ${low ? 'below' : 'at or above'} the ${gradeName} ${low ? 'minimum' : 'upper bound'} of ${formatFigure(limit)} mm²/s`,
+      })
     }
-    const ref = limits.newOilKv100 ?? null
-    if (ref !== null && ref > 0 && limits.kv100ChangeCautionPct !== null) {
-      const changePct = ((sample.kv100 - ref) / ref) * 100
-      if (Math.abs(changePct) > limits.kv100ChangeCautionPct) {
-        reasons.push({
-          element: 'kv100', kind: 'absolute', level: 'caution', value: changePct, limit: limits.kv100ChangeCautionPct,
-          message: `KV100 changed ${changePct > 0 ? '+' : ''}${formatFigure(changePct)} % from new oil, beyond the caution limit of ${formatFigure(limits.kv100ChangeCautionPct)} %`,
-        })
-      }
+  }
+
+  let hthsCheck: SampleAssessment['hthsCheck'] = null
+  if (typeof sample.hths === 'number' && grade) {
+    hthsCheck = hthsInGrade(grade.grade, sample.hths)
+    if (hthsCheck && !hthsCheck.ok) {
+      reasons.push({
+        element: 'hths', kind: 'grade', level: 'caution', value: sample.hths, limit: hthsCheck.min,
+        message: `HTHS ${formatFigure(sample.hths)} mPa·s below the ${gradeName} minimum of ${formatFigure(hthsCheck.min)} mPa·s (SAE J300)`,
+      })
     }
+  }
+
+  const viscosityChange = {
+    kv40Pct: changeFromNewPct(sample.kv40, reference?.kv40 ?? null),
+    kv100Pct: changeFromNewPct(sample.kv100, reference?.kv100 ?? null),
+  }
+  for (const [element, pct, limit] of [
+    ['kv40', viscosityChange.kv40Pct, limits.kv40ChangeCautionPct],
+    ['kv100', viscosityChange.kv100Pct, limits.kv100ChangeCautionPct],
+  ] as const) {
+    // Either way matters: thinner oil points to fuel or shear, thicker to oxidation or soot.
+    if (pct === null || limit === null || !(Math.abs(pct) > limit)) continue
+    const name = element === 'kv40' ? 'KV40' : 'KV100'
+    reasons.push({
+      element, kind: 'change', level: 'caution', value: pct, limit,
+      message: `${name} changed ${pct > 0 ? '+' : ''}${formatFigure(pct)} % from new oil, beyond the caution limit of ${formatFigure(limit)} %`,
+    })
   }
 
   let vi: number | null = null
@@ -311,14 +379,17 @@ export function assessSample(sample: OilSampleValues, previous: OilSampleValues 
     reasons,
     iso4406: iso4406({ p4: sample.p4, p6: sample.p6, p14: sample.p14 }, sample.countedParticles ? { countedParticles: sample.countedParticles } : undefined),
     viscosityIndex: vi,
+    grade,
     gradeCheck,
+    hthsCheck,
+    viscosityChange,
   }
 }
 
 /**
- * Demo defaults. Caution levels, fuel, water and viscosity limits are common
- * practice for petrol engines (no single source; trends matter more than
- * absolutes). The critical levels (twice caution), the iron rate limits and
+ * Demo defaults. Caution levels, fuel, water and viscosity change limits
+ * (KV100 15 %, KV40 25 %) are common practice for petrol engines (no single
+ * source; trends matter more than absolutes). The critical levels (twice caution), the iron rate limits and
  * the statistical percentiles are invented for the demo. Every engine type
  * should carry its supplier's own figures.
  */
@@ -335,8 +406,9 @@ export const DEFAULT_OIL_LIMITS: OilLimits = Object.freeze({
   }),
   fuelDilutionCautionPct: 5,
   waterCautionPct: 0.1,
+  kv40ChangeCautionPct: 25,
   kv100ChangeCautionPct: 15,
-  newOilKv100: null,
+  newOil: null,
   statistical: Object.freeze({
     enabled: true,
     minSamples: 30,

@@ -10,6 +10,8 @@ import { parseGrade } from './viscosity'
 export const MAX_PPM = 100_000
 export const MAX_KV40 = 5_000
 export const MAX_KV100 = 1_000
+/** HTHS of engine oils lies around 1.5 to 6 mPa s; far above is a unit slip (cP and mPa s are the same, Pa s is not). */
+export const MAX_HTHS = 100
 export const MAX_HOURS = 100_000
 export const MAX_PARTICLES_PER_ML = 10_000_000
 
@@ -105,6 +107,7 @@ export function oilSampleSchema(ctx: { now: Date; builtAt: Date | null }): z.Zod
     elements: z.object(elementShape, { error: 'elements must be a set of ppm readings' }),
     kv40: numberField('kv40', 0, MAX_KV40, 'mm²/s', { exclusiveMin: true }),
     kv100: numberField('kv100', 0, MAX_KV100, 'mm²/s', { exclusiveMin: true }),
+    hths: numberField('hths', 0, MAX_HTHS, 'mPa·s', { exclusiveMin: true }),
     fuelDilutionPct: numberField('fuelDilutionPct', 0, 100, '%'),
     waterPct: numberField('waterPct', 0, 100, '%'),
     p4: numberField('p4', 0, MAX_PARTICLES_PER_ML, 'particles/mL'),
@@ -153,6 +156,7 @@ export function oilSampleSchema(ctx: { now: Date; builtAt: Date | null }): z.Zod
       elements,
       kv40: s.kv40,
       kv100: s.kv100,
+      hths: s.hths,
       fuelDilutionPct: s.fuelDilutionPct,
       waterPct: s.waterPct,
       p4: s.p4,

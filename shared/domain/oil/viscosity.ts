@@ -144,21 +144,27 @@ export interface SaeGrade {
 }
 
 export interface SaeJ300Table {
+  /** short key of the edition, as stored beside a check that used it */
+  id: string
+  /** what the figures rest on */
   edition: string
   grades: Record<string, SaeGrade>
   /** KV100 minimum of each winter (W) grade, mm^2/s */
   winterGrades: Record<string, { kv100Min: number }>
-  /** HTHS minimum of SAE 40 when the winter grade is 0W, 5W or 10W; other 40s use grades['40'].hthsMin */
+  /** HTHS minimum of SAE 40 when the winter grade is one of lowWinterFor40; other 40s use grades['40'].hthsMin */
   hthsMin40LowWinter: number
   lowWinterFor40: readonly string[]
 }
 
 /**
  * SAE J300 engine-oil viscosity classification, kept as data because editions
- * change it. Summer grades and HTHS minimums as reproduced (grade 12 from
- * memory); the winter-grade KV100 minimums are from memory.
+ * change it (grades are added, minimums move): a new edition is a new entry in
+ * SAE_J300_EDITIONS, and every check names the edition it used. Summer grades
+ * and HTHS minimums as reproduced (grade 12 from memory); the winter-grade
+ * KV100 minimums and the edition's year are from memory.
  */
-export const SAE_J300: SaeJ300Table = Object.freeze({
+export const SAE_J300_2015: SaeJ300Table = Object.freeze({
+  id: 'J300-2015',
   edition: 'SAE J300 (2015 and later revisions, grades 8 to 60), as reproduced; grade 12 and winter minimums from memory',
   grades: Object.freeze({
     '8': { kv100Min: 4.0, kv100Max: 6.1, hthsMin: 1.7 },
@@ -182,10 +188,19 @@ export const SAE_J300: SaeJ300Table = Object.freeze({
   lowWinterFor40: Object.freeze(['0W', '5W', '10W']),
 })
 
-/** '5W-40' -> { winter: '5W', summer: '40' }; '40' -> { winter: null, summer: '40' }; null if not a known grade. */
+/** Every edition the program knows, by id. */
+export const SAE_J300_EDITIONS: Readonly<Record<string, SaeJ300Table>> = Object.freeze({ [SAE_J300_2015.id]: SAE_J300_2015 })
+
+/** The edition checks use unless told otherwise. */
+export const SAE_J300: SaeJ300Table = SAE_J300_2015
+
+/**
+ * '5W-40' -> { winter: '5W', summer: '40' }; '40' -> { winter: null, summer: '40' }; null if not a known grade.
+ * Labs and oil drums write the same grade as 5W-40, 5W40, 5w/40 or SAE 5W–40.
+ */
 export function parseGrade(grade: string, table: SaeJ300Table = SAE_J300): { winter: string | null; summer: string } | null {
   if (typeof grade !== 'string') return null
-  const m = /^\s*(?:SAE\s*)?(?:(\d{1,2})\s*W\s*-?\s*)?(\d{1,2})\s*$/i.exec(grade)
+  const m = /^\s*(?:SAE\s*)?(?:(\d{1,2})\s*W\s*[-\u2010-\u2015/]?\s*)?(\d{1,2})\s*$/i.exec(grade)
   if (!m) return null
   const winter = m[1] !== undefined ? `${Number(m[1])}W` : null
   const summer = String(Number(m[2]))
@@ -205,12 +220,23 @@ export function kv100InGrade(grade: string, kv100: number, table: SaeJ300Table =
   return { ok: Number.isFinite(kv100) && kv100 >= min && kv100 < max, min, max }
 }
 
-/** HTHS minimum at 150 C for a grade, mPa s; null for an unknown grade. */
+/**
+ * HTHS minimum at 150 C for a grade, mPa s; null for an unknown grade or one
+ * without a minimum. A multigrade takes the minimum of its summer grade, except
+ * that a 40 with a low winter grade (0W-40, 5W-40, 10W-40) has the lower one.
+ */
 export function hthsMinFor(grade: string, table: SaeJ300Table = SAE_J300): number | null {
   const parsed = parseGrade(grade, table)
   if (!parsed) return null
   if (parsed.summer === '40' && parsed.winter !== null && table.lowWinterFor40.includes(parsed.winter)) return table.hthsMin40LowWinter
   return table.grades[parsed.summer]!.hthsMin
+}
+
+/** Whether an HTHS viscosity (mPa s at 150 C) meets the grade's minimum (the minimum itself passes); null when the grade has none. */
+export function hthsInGrade(grade: string, hths: number, table: SaeJ300Table = SAE_J300): { ok: boolean; min: number } | null {
+  const min = hthsMinFor(grade, table)
+  if (min === null) return null
+  return { ok: Number.isFinite(hths) && hths >= min, min }
 }
 
 // ------------------------------------------------------- ASTM D341 Walther
