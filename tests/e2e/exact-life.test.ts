@@ -167,8 +167,9 @@ describe('one verdict per over-rev event', () => {
   it('bands edited back (teardown from any duration): the stored event is decided again, audited, and every view follows', async () => {
     expect((await engineer.patch(`/api/engine-types/${engineTypeId}`, { overRevBands: originalBands })).status).toBe(200)
     const audit = await db()('audit_log').where({ entity: 'session', entity_id: String(sessionId), action: 'reclassify-over-revs' }).orderBy('id', 'desc').first()
-    expect(JSON.parse(audit.before_value)[0].bandId).toBe('A')
-    expect(JSON.parse(audit.after_value)[0].bandId).toBe('C')
+    const parsed = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v)
+    expect(parsed(audit.before_value)[0].bandId).toBe('A')
+    expect(parsed(audit.after_value)[0].bandId).toBe('C')
 
     const view = (await race.get(`/api/sessions/${sessionId}`)).body
     expect(view.session.overRevs.map((e: any) => e.bandId)).toEqual(['C'])
