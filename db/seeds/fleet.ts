@@ -3,6 +3,7 @@
 // with a 12-hour race still to come. Every name here is invented.
 import type { Knex } from 'knex'
 import { encodeMoments, type RpmMoments } from '../../shared/domain/rpm-moments'
+import type { TraceSummary } from '../../shared/domain/trace'
 import { syntheticTrace, type PlannedExcursion } from './traces'
 
 /** Small deterministic PRNG (mulberry32), so every run writes the same demo and bench data. */
@@ -149,6 +150,11 @@ const DAY = 86_400_000
 /** Demo sessions come from invented traces read by the trace analyzer; no raw file is kept for them. */
 export const SYNTHETIC_FILE_NAME = 'invented demo trace (raw file not kept)'
 const round3 = (x: number) => Math.round(x * 1000) / 1000
+
+/** What the session page draws from: the trace overview, as a logger import keeps it. */
+function traceDetails(trace: TraceSummary) {
+  return JSON.stringify({ overview: trace.overview, durationS: trace.durationS, distanceSource: 'none', rows: trace.samples, skippedRows: 0, warnings: [], gaps: [], gapCount: 0 })
+}
 
 export function momentsBlob(m: RpmMoments): Buffer {
   const bytes = encodeMoments(m)
@@ -336,6 +342,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           min_oil_pressure_bar: Math.round((2.6 + rand() * 0.8) * 100) / 100,
           source: 'logger',
           file_name: SYNTHETIC_FILE_NAME,
+          details: traceDetails(trace),
         })
       }
     }
@@ -378,6 +385,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
         max_rpm: Math.round(trace.maxRpm),
         source: 'logger',
         file_name: SYNTHETIC_FILE_NAME,
+        details: traceDetails(trace),
       })
     }
   }

@@ -147,6 +147,7 @@ export function toSessionDto(r: any): SessionDto {
     minOilPressureBar: numOrNull(r.min_oil_pressure_bar),
     source: r.source,
     fileName: r.file_name ?? null,
+    hasFile: Boolean(r.file_key),
   }
 }
 

@@ -159,6 +159,8 @@ export interface SessionDto {
   minOilPressureBar: number | null
   source: 'manual' | 'logger'
   fileName: string | null
+  /** the raw file is kept, so the session can be read again */
+  hasFile: boolean
 }
 
 export interface EventDto {
