@@ -2,6 +2,9 @@
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   srcDir: '.',
+  // A production build goes under node_modules/.cache by default; worktrees that share one
+  // node_modules would then overwrite each other's builds.
+  buildDir: '.nuxt',
   telemetry: false,
   devtools: { enabled: false },
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],
@@ -32,7 +35,17 @@ export default defineNuxtConfig({
     alertsEnabled: true,
     storageDir: '.data/files',
     loggerMaxBytes: 200 * 1024 * 1024,
+    // Sign-in sessions (README "Security"): `maxAge` is the absolute lifetime in seconds, enforced
+    // on the server (auth_sessions) and used as the cookie's lifetime; `sessionIdleTimeout` ends a
+    // session after that many seconds without a request. 12 h and 30 min: OWASP ASVS 4.0 3.3.2, level 2.
     session: { maxAge: 60 * 60 * 12, cookie: { sameSite: 'lax' } },
+    sessionIdleTimeout: 30 * 60,
+    // The reverse proxy in front of every instance, if any: how many hops, and the header they
+    // append the client's address to ('x-forwarded-for' or 'forwarded'). 0 hops: forwarded headers
+    // are ignored (the client is the connection's peer). See server/utils/client-address.ts.
+    trustedProxy: { header: 'x-forwarded-for', hops: 0 },
   },
+  // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
+  auth: { loadStrategy: 'none' },
   typescript: { strict: true },
 })

@@ -5,6 +5,9 @@ import * as logger from './20261202_03_logger'
 import * as alerts from './20261202_04_alerts'
 import * as oil from './20261202_05_oil'
 import * as teardown from './20261202_06_teardown'
+import * as authSessions from './20261203_02_a_auth_sessions'
+import * as signInAddresses from './20261203_02_b_sign_in_addresses'
+import * as sessionFileScope from './20261203_02_c_session_file_scope'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -14,6 +17,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202_04_alerts': alerts,
   '20261202_05_oil': oil,
   '20261202_06_teardown': teardown,
+  '20261203_02_a_auth_sessions': authSessions,
+  '20261203_02_b_sign_in_addresses': signInAddresses,
+  '20261203_02_c_session_file_scope': sessionFileScope,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -1,5 +1,6 @@
 // Request bodies of the oil API, shared by the forms and the routes.
 import { z } from 'zod'
+import { line, multiline } from '../text'
 import { OIL_ELEMENTS } from '#shared/domain/oil/limits'
 import { OIL_CSV_FIELDS } from '#shared/domain/oil/lab-csv'
 
@@ -36,25 +37,25 @@ export const OilLimitsSchema = z.object({
 /** Form entry: the engine and lab, then the sample fields checked by oilSampleSchema on the server. */
 export const OilSampleCreateSchema = z.looseObject({
   engineId: z.coerce.number({ error: 'engineId must be an engine' }).int().positive({ error: 'engineId must be an engine' }),
-  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+  lab: line().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
 })
 
 /** Correction of a recorded sample: the lab, then the sample fields checked by oilSampleSchema on the server. */
 export const OilSampleUpdateSchema = z.looseObject({
-  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+  lab: line().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
 })
 
-export const OilCsvMappingSchema = z.record(z.string().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
+export const OilCsvMappingSchema = z.record(line().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
 
 export const OilImportSchema = z.object({
-  lab: z.string({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
-  csv: z.string({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
+  lab: line({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
+  csv: multiline({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
   mapping: OilCsvMappingSchema,
   saveMapping: z.boolean().optional(),
 })
 
 export const OilMappingSaveSchema = z.object({
-  lab: z.string().trim().min(1, { error: 'lab is required' }).max(120),
-  headers: z.array(z.string().max(200)).min(1, { error: 'headers are required' }).max(200),
+  lab: line().trim().min(1, { error: 'lab is required' }).max(120),
+  headers: z.array(line().max(200)).min(1, { error: 'headers are required' }).max(200),
   mapping: OilCsvMappingSchema,
 })
