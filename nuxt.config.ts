@@ -35,7 +35,17 @@ export default defineNuxtConfig({
     alertsEnabled: true,
     storageDir: '.data/files',
     loggerMaxBytes: 200 * 1024 * 1024,
+    // Sign-in sessions (README "Security"): `maxAge` is the absolute lifetime in seconds, enforced
+    // on the server (auth_sessions) and used as the cookie's lifetime; `sessionIdleTimeout` ends a
+    // session after that many seconds without a request. 12 h and 30 min: OWASP ASVS 4.0 3.3.2, level 2.
     session: { maxAge: 60 * 60 * 12, cookie: { sameSite: 'lax' } },
+    sessionIdleTimeout: 30 * 60,
+    // The reverse proxy in front of every instance, if any: how many hops, and the header they
+    // append the client's address to ('x-forwarded-for' or 'forwarded'). 0 hops: forwarded headers
+    // are ignored (the client is the connection's peer). See server/utils/client-address.ts.
+    trustedProxy: { header: 'x-forwarded-for', hops: 0 },
   },
+  // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
+  auth: { loadStrategy: 'none' },
   typescript: { strict: true },
 })

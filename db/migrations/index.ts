@@ -10,6 +10,9 @@ import * as reciprocatingMassCheck from './20261203_04_reciprocating_mass_check'
 import * as oilHths from './20261203_03_a_oil_hths'
 import * as oilParticleBasis from './20261203_03_b_oil_particle_basis'
 import * as oilNewReference from './20261203_03_c_oil_new_reference'
+import * as authSessions from './20261203_02_a_auth_sessions'
+import * as signInAddresses from './20261203_02_b_sign_in_addresses'
+import * as sessionFileScope from './20261203_02_c_session_file_scope'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -24,6 +27,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203_03_a_oil_hths': oilHths,
   '20261203_03_b_oil_particle_basis': oilParticleBasis,
   '20261203_03_c_oil_new_reference': oilNewReference,
+  '20261203_02_a_auth_sessions': authSessions,
+  '20261203_02_b_sign_in_addresses': signInAddresses,
+  '20261203_02_c_session_file_scope': sessionFileScope,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

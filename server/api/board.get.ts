@@ -1,5 +1,6 @@
 import { gzipSync } from 'node:zlib'
 import { z } from 'zod'
+import { line } from '#shared/text'
 import { FLEET_READERS } from '#shared/roles'
 import { visibleFleet } from '../services/fleet-scope'
 
@@ -8,7 +9,7 @@ const Query = z.object({
   type: z.coerce.number().int().positive().optional(),
   status: z.enum(['ok', 'warning', 'due', 'over']).optional(),
   location: z.enum(['car', 'shelf', 'supplier', 'teardown']).optional(),
-  q: z.string().trim().max(60).optional(),
+  q: line().trim().max(60).optional(),
   sort: z.enum(['consumed', 'due', 'serial']).default('consumed'),
 })
 

@@ -1,3 +1,5 @@
+import type { H3Event } from 'h3'
+
 // Response headers for every page and API answer, and the cross-site refusal for state-changing
 // requests (SameSite=Lax cookies plus an Origin / Sec-Fetch-Site check).
 const API_CSP = "default-src 'none'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'"
@@ -24,10 +26,11 @@ export default defineEventHandler((event) => {
   }
 })
 
-function sameOrigin(origin: string, event: Parameters<typeof getRequestHost>[0]) {
+function sameOrigin(origin: string, event: H3Event) {
   try {
     const o = new URL(origin)
-    if (o.host === getRequestHost(event, { xForwardedHost: true })) return true
+    // X-Forwarded-Host counts only when a proxy is configured as trusted (runtimeConfig trustedProxy).
+    if (o.host === requestHost(event)) return true
     return o.origin === new URL(useRuntimeConfig().publicUrl).origin
   } catch {
     return false

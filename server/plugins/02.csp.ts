@@ -6,14 +6,20 @@ import { createHash } from 'node:crypto'
 const INLINE_SCRIPT = /<script(?![^>]*\bsrc=)(?![^>]*type="application\/json")[^>]*>([\s\S]*?)<\/script>/g
 
 export default defineNitroPlugin((nitroApp) => {
+  // Whatever else sets it (payload, island and error answers), the last word before sending.
+  nitroApp.hooks.hook('beforeResponse', (event) => {
+    removeResponseHeader(event, 'x-powered-by')
+  })
   nitroApp.hooks.hook('render:response', (response) => {
     const html = typeof response.body === 'string' ? response.body : ''
     const hashes = new Set<string>()
     for (const m of html.matchAll(INLINE_SCRIPT)) {
       if (m[1]) hashes.add(`'sha256-${createHash('sha256').update(m[1]).digest('base64')}'`)
     }
+    // Nuxt's renderer names itself in x-powered-by: not sent.
+    const { 'x-powered-by': _poweredBy, ...headers } = (response.headers ?? {}) as Record<string, string>
     response.headers = {
-      ...response.headers,
+      ...headers,
       'content-security-policy': [
         "default-src 'self'",
         `script-src 'self' ${[...hashes].join(' ')}`.trim(),

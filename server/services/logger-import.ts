@@ -7,7 +7,7 @@ import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
 import type { EngineTypeDto } from '#shared/types/fleet'
-import type { Actor } from '../utils/guard'
+import { scopeQuery, type Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
@@ -138,7 +138,11 @@ export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta,
   let stored = false
   try {
     return await db.transaction(async (trx) => {
-      const existing = await trx('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('s.file_sha256', result.sha256).first('s.id', 's.started_at', 's.kind', 'e.serial')
+      // A duplicate is looked for only among the sessions this user may see, and named only then.
+      // Another team may hold the same file (a shared test): that is neither refused nor hinted at.
+      const existing = await scopeQuery(trx('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('s.file_sha256', result.sha256), actor, { supplier: 'e.supplier_id', team: 's.team_id' })
+        .orderBy('s.id')
+        .first('s.id', 's.started_at', 's.kind', 'e.serial')
       if (existing) {
         conflict(`This file was already imported as session ${existing.id} (${existing.kind}, ${existing.serial}, ${new Date(existing.started_at).toISOString().slice(0, 16).replace('T', ' ')} UTC)`, { sessionId: existing.id })
       }
@@ -158,6 +162,10 @@ export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta,
     })
   } catch (error) {
     if (stored) await removeFile(fileKey).catch(() => {})
+    // Two imports of one file into one scope at the same moment: the unique index keeps one.
+    if ((error as { code?: string }).code === 'ER_DUP_ENTRY' && String((error as Error).message).includes('sessions_file_scope_sha256_unique')) {
+      conflict('This file was imported by another request a moment ago')
+    }
     throw error
   }
 }

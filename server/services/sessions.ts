@@ -85,6 +85,8 @@ export async function insertSession(trx: Knex.Transaction, actor: Actor, input: 
     file_key: extras.fileKey ?? null,
     file_name: extras.fileName ?? null,
     file_sha256: extras.fileSha256 ?? null,
+    // The owner scope within which a logger file is unique: the running team, else the supplier.
+    file_scope_id: engine.team_id ?? engine.supplier_id,
     details: extras.details === undefined ? null : JSON.stringify(extras.details),
     created_by: actor.id,
   })

@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import { roleFitsOrganisation, type Role } from '#shared/roles'
 import type { Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
+import { endUserSessions } from '../utils/auth-session'
 import { badRequest, conflict, forbidden, notFound } from '../utils/errors'
 
 export interface UserDto {
@@ -100,10 +101,15 @@ export async function updateUser(
     if (input.role !== undefined) patch.role = input.role
     if (input.active !== undefined) patch.active = input.active
     if (passwordHash) patch.password_hash = passwordHash
-    // Deactivation, a new role or a new password ends every existing session of that user.
+    // Deactivation, a new role or a new password ends every existing session of that user, on every
+    // instance: the session rows end, and the session version moves on.
     const endsSessions =
       (input.active !== undefined && input.active !== Boolean(before.active)) || (input.role !== undefined && input.role !== before.role) || Boolean(passwordHash)
     await trx('users').where('id', id).update(endsSessions ? { ...patch, session_version: trx.raw('session_version + 1') } : patch)
+    if (endsSessions) {
+      const reason = input.active !== undefined && input.active !== Boolean(before.active) ? 'deactivated' : input.role !== undefined && input.role !== before.role ? 'role' : 'password'
+      await endUserSessions(trx, id, reason)
+    }
     await audit(trx, actor, {
       entity: 'user',
       entityId: id,

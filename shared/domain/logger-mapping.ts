@@ -2,6 +2,7 @@
 // Shared by the browser preview page and the server import: pure, no I/O, no clock.
 
 import { z } from 'zod'
+import { line } from '../text'
 import { toBar, toCelsius, toKmh } from './units'
 
 export const LOGGER_CHANNELS = ['time', 'rpm', 'speed', 'oilTemp', 'oilPressure', 'waterTemp', 'throttle', 'gear'] as const
@@ -13,14 +14,14 @@ export type LoggerDelimiter = typeof LOGGER_DELIMITERS[number]
 export const LoggerMappingSchema = z.object({
   columns: z.object({
     // Header cells are compared trimmed, so a name of only blanks names no column.
-    time: z.string().trim().min(1, 'name the time column'),
-    rpm: z.string().trim().min(1, 'name the rpm column'),
-    speed: z.string().optional(),
-    oilTemp: z.string().optional(),
-    oilPressure: z.string().optional(),
-    waterTemp: z.string().optional(),
-    throttle: z.string().optional(),
-    gear: z.string().optional(),
+    time: line().trim().min(1, 'name the time column'),
+    rpm: line().trim().min(1, 'name the rpm column'),
+    speed: line().optional(),
+    oilTemp: line().optional(),
+    oilPressure: line().optional(),
+    waterTemp: line().optional(),
+    throttle: line().optional(),
+    gear: line().optional(),
   }),
   units: z.object({
     time: z.enum(['seconds', 'clock']).default('seconds'),

@@ -8,6 +8,7 @@
  * cracks, scoring or sudden failure.
  */
 import { z } from 'zod'
+import { line } from '../text'
 
 export const TEARDOWN_NOTICE =
   'Measurements and wear projections support, and never replace, the engine supplier\'s service instructions, inspection and licensed practice.'
@@ -37,8 +38,8 @@ const LENGTH_UNITS: readonly CharacteristicUnit[] = ['mm', 'um']
 
 export const characteristicSchema = z
   .object({
-    key: z.string().trim().min(1, { error: 'key is required' }),
-    label: z.string().trim().min(1, { error: 'label is required' }),
+    key: line().trim().min(1, { error: 'key is required' }),
+    label: line().trim().min(1, { error: 'label is required' }),
     unit: z.enum(CHARACTERISTIC_UNITS, { error: 'unit must be one of mm, um, N, N*m, deg, %, bar, kg, g' }),
     nominal: z.number({ error: 'nominal must be a number' }),
     min: z.number({ error: 'min must be a number' }),

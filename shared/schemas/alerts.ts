@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { multiline } from '../text'
 
 // What a finding is about; each kind can be switched on or off for e-mail per user (in-app alerts always show).
 export const ALERT_KINDS = ['life-warning', 'life-due', 'life-over', 'forecast', 'over-rev', 'oil-caution', 'oil-critical'] as const
@@ -28,7 +29,7 @@ export function emailWanted(stored: unknown, kind: AlertKind): boolean {
   return prefs?.[kind] !== false
 }
 
-export const AlertAckSchema = z.object({ comment: z.string().trim().max(1000, 'must be at most 1000 characters').default('') }).strict()
+export const AlertAckSchema = z.object({ comment: multiline().trim().max(1000, 'must be at most 1000 characters').default('') }).strict()
 
 export const AlertListQuery = z.object({
   state: z.enum(['open', 'acknowledged', 'all']).default('all'),

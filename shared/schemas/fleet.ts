@@ -1,5 +1,6 @@
 // Schemas shared by the forms and the API for the fleet model.
 import { z } from 'zod'
+import { line } from '../text'
 
 const positive = (what: string) => z.number({ error: `${what} must be a number` }).positive(`${what} must be above zero`)
 const nullablePositive = z.number().positive('must be above zero').nullable()
@@ -14,8 +15,8 @@ const reciprocatingMass = z
   .nullable()
 
 export const OverRevBandSchema = z.object({
-  id: z.string().trim().min(1).max(20),
-  label: z.string().trim().min(1).max(80),
+  id: line().trim().min(1).max(20),
+  label: line().trim().min(1).max(80),
   minRpm: z.number().int().positive(),
   minDurationS: z.number().min(0).max(60),
   hysteresisRpm: z.number().min(0).max(2000),
@@ -23,7 +24,7 @@ export const OverRevBandSchema = z.object({
 
 export const EngineTypeUpdateSchema = z
   .object({
-    name: z.string().trim().min(2).max(120),
+    name: line().trim().min(2).max(120),
     revLimitRpm: z.number().int().min(1000).max(25000),
     idleRpm: z.number().int().min(0).max(6000),
     bandWidthRpm: z.number().int().min(50).max(2000),
@@ -38,8 +39,8 @@ export const EngineTypeUpdateSchema = z
   .refine((v) => !v.overRevBands || new Set(v.overRevBands.map((b) => b.id)).size === v.overRevBands.length, { message: 'band ids must be unique', path: ['overRevBands'] })
 
 export const CharacteristicSchema = z.object({
-  key: z.string().trim().regex(/^[a-z0-9_]{1,40}$/, 'use lower-case letters, digits and _'),
-  label: z.string().trim().min(2).max(80),
+  key: line().trim().regex(/^[a-z0-9_]{1,40}$/, 'use lower-case letters, digits and _'),
+  label: line().trim().min(2).max(80),
   unit: z.enum(['mm', 'um', 'N', 'N*m', 'deg', '%', 'bar', 'kg', 'g']),
   nominal: z.number(),
   min: z.number(),
@@ -54,12 +55,12 @@ const CharacteristicsSchema = z
 
 export const ComponentTypeUpdateSchema = z
   .object({
-    name: z.string().trim().min(2).max(120),
+    name: line().trim().min(2).max(120),
     limitHours: nullablePositive,
     limitKm: nullablePositive,
     limitEqHours: nullablePositive,
-    limitOverRev: z.record(z.string().min(1).max(20), z.number().int().min(0).max(10000)),
-    immediateInspectionBand: z.string().min(1).max(20).nullable(),
+    limitOverRev: z.record(line().min(1).max(20), z.number().int().min(0).max(10000)),
+    immediateInspectionBand: line().min(1).max(20).nullable(),
     warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
     dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
     damageExponent: z.number().min(0).max(40),
@@ -70,14 +71,14 @@ export const ComponentTypeUpdateSchema = z
   .refine((v) => v.warningLevel === undefined || v.dueLevel === undefined || v.warningLevel < v.dueLevel, { message: 'must be above the warning level', path: ['dueLevel'] })
 
 export const ComponentTypeCreateSchema = z.object({
-  code: z.string().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
-  name: z.string().trim().min(2).max(120),
-  category: z.string().trim().min(2).max(40),
+  code: line().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
+  name: line().trim().min(2).max(120),
+  category: line().trim().min(2).max(40),
   limitHours: nullablePositive.default(null),
   limitKm: nullablePositive.default(null),
   limitEqHours: nullablePositive.default(null),
-  limitOverRev: z.record(z.string().min(1).max(20), z.number().int().min(0).max(10000)).default({}),
-  immediateInspectionBand: z.string().min(1).max(20).nullable().default(null),
+  limitOverRev: z.record(line().min(1).max(20), z.number().int().min(0).max(10000)).default({}),
+  immediateInspectionBand: line().min(1).max(20).nullable().default(null),
   warningLevel: z.number().gt(0).lt(1).default(0.8),
   dueLevel: z.number().gt(0).lt(1).default(0.9),
   damageExponent: z.number().min(0).max(40).default(0),
@@ -86,11 +87,11 @@ export const ComponentTypeCreateSchema = z.object({
   .refine((v) => v.limitHours !== null || v.limitKm !== null || v.limitEqHours !== null || Object.keys(v.limitOverRev).length > 0, { message: 'a life-limited part needs at least one limit', path: ['limitHours'] })
 
 export const EngineTypeCreateSchema = z.object({
-  code: z.string().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
-  name: z.string().trim().min(2).max(120),
-  series: z.string().trim().min(2).max(80),
+  code: line().trim().regex(/^[A-Z0-9-]{2,40}$/, 'use capitals, digits and -'),
+  name: line().trim().min(2).max(120),
+  series: line().trim().min(2).max(80),
   cylinders: z.number().int().min(1).max(16),
-  layout: z.string().trim().min(2).max(40),
+  layout: line().trim().min(2).max(40),
   boreMm: z.number().positive().max(200),
   strokeMm: z.number().positive().max(200),
   conrodMm: z.number().positive().max(400),
@@ -102,7 +103,7 @@ export const EngineTypeCreateSchema = z.object({
   maxGapS: z.number().positive().max(60).default(1),
   overRevBands: z.array(OverRevBandSchema).min(1).max(6),
   lowOilPressure: z.object({ belowBar: z.number().min(0).max(20), aboveRpm: z.number().min(0).max(25000), minDurationS: z.number().min(0).max(60) }),
-  positions: z.array(z.object({ position: z.string().trim().regex(/^[a-z0-9-]{1,40}$/, 'use lower-case letters, digits and -'), label: z.string().trim().min(1).max(80), componentTypeId: z.number().int().positive() })).min(1).max(80),
+  positions: z.array(z.object({ position: line().trim().regex(/^[a-z0-9-]{1,40}$/, 'use lower-case letters, digits and -'), label: line().trim().min(1).max(80), componentTypeId: z.number().int().positive() })).min(1).max(80),
 })
   .refine((v) => v.conrodMm > v.strokeMm / 2, { message: 'must be longer than the crank radius (stroke / 2)', path: ['conrodMm'] })
   .refine((v) => v.idleRpm < v.revLimitRpm, { message: 'must be below the rev limit', path: ['idleRpm'] })
@@ -112,7 +113,7 @@ export const EngineTypeCreateSchema = z.object({
 export const SESSION_KINDS = ['practice', 'qualifying', 'race', 'test', 'bench'] as const
 
 export const OverRevEventSchema = z.object({
-  bandId: z.string().min(1).max(20),
+  bandId: line().min(1).max(20),
   peakRpm: z.number().int().positive().max(30000),
   durationS: z.number().min(0).max(600),
   startS: z.number().min(0).default(0),
@@ -131,14 +132,14 @@ export const ManualSessionSchema = z.object({
 export type ManualSessionInput = z.infer<typeof ManualSessionSchema>
 
 export const PlanSchema = z.object({
-  chassis: z.string().trim().max(40).nullable().default(null),
+  chassis: line().trim().max(40).nullable().default(null),
   plannedSeconds: z.number().int().min(0).max(48 * 3600).nullable().default(null),
   plannedKm: z.number().min(0).max(10000).nullable().default(null),
 })
 
 export const InstallSchema = z.object({
-  position: z.string().trim().min(1).max(40),
-  serial: z.string().trim().min(1).max(60),
+  position: line().trim().min(1).max(40),
+  serial: line().trim().min(1).max(60),
   at: z.iso.datetime({ offset: true }).optional(),
 })
 
@@ -148,9 +149,9 @@ export const RemoveSchema = z.object({
 })
 
 export const EventCreateSchema = z.object({
-  name: z.string().trim().min(2).max(120),
-  series: z.string().trim().min(2).max(80),
-  track: z.string().trim().min(2).max(120),
+  name: line().trim().min(2).max(120),
+  series: line().trim().min(2).max(80),
+  track: line().trim().min(2).max(120),
   trackLengthKm: z.number().positive().max(100),
   startsAt: z.iso.datetime({ offset: true }),
   endsAt: z.iso.datetime({ offset: true }),

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { line } from '../text'
 import { LoggerMappingSchema } from '../domain/logger-mapping'
 import { SESSION_KINDS } from './fleet'
 
@@ -9,9 +10,8 @@ export const ImportQuerySchema = z.object({
   kind: z.enum(SESSION_KINDS),
   startedAt: z.iso.datetime({ offset: true, error: 'must be a date-time such as 2026-11-28T14:00:00Z' }),
   laps: z.union([z.literal('').transform(() => null), z.coerce.number().int().min(0).max(2000)]).nullable().default(null),
-  fileName: z.string().trim().min(1).max(255).default('logger.csv'),
-  mapping: z
-    .string()
+  fileName: line().trim().min(1).max(255).default('logger.csv'),
+  mapping: line()
     .transform((s, ctx) => {
       try {
         return JSON.parse(s)
@@ -24,7 +24,7 @@ export const ImportQuerySchema = z.object({
 })
 
 export const LoggerProfileSchema = z.object({
-  name: z.string().trim().min(1).max(80),
-  header: z.array(z.string().max(200)).min(2).max(400),
+  name: line().trim().min(1).max(80),
+  header: z.array(line().max(200)).min(2).max(400),
   mapping: LoggerMappingSchema,
 })

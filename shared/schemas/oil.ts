@@ -1,5 +1,6 @@
 // Request bodies of the oil API, shared by the forms and the routes.
 import { z } from 'zod'
+import { line, multiline } from '../text'
 import { OIL_ELEMENTS } from '#shared/domain/oil/limits'
 import { OIL_CSV_FIELDS, PARTICLE_BASES } from '#shared/domain/oil/lab-csv'
 import { parseGrade } from '#shared/domain/oil/viscosity'
@@ -21,7 +22,7 @@ const refValue = (label: string, unit: string, max: number) =>
 
 /** The new oil of an engine type as measured; every figure may be left empty. */
 export const NewOilReferenceSchema = z.object({
-  grade: z.string({ error: 'grade must be text such as 5W-40' }).trim().max(20)
+  grade: line({ error: 'grade must be text such as 5W-40' }).trim().max(20)
     .refine((g) => g === '' || parseGrade(g) !== null, { error: 'grade must be an SAE J300 grade such as 5W-40 or 40' })
     .transform((g) => (g === '' ? null : g))
     .nullable(),
@@ -52,19 +53,19 @@ export const OilLimitsSchema = z.object({
 /** Form entry: the engine and lab, then the sample fields checked by oilSampleSchema on the server. */
 export const OilSampleCreateSchema = z.looseObject({
   engineId: z.coerce.number({ error: 'engineId must be an engine' }).int().positive({ error: 'engineId must be an engine' }),
-  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+  lab: line().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
 })
 
 /** Correction of a recorded sample: the lab, then the sample fields checked by oilSampleSchema on the server. */
 export const OilSampleUpdateSchema = z.looseObject({
-  lab: z.string().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+  lab: line().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
 })
 
-export const OilCsvMappingSchema = z.record(z.string().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
+export const OilCsvMappingSchema = z.record(line().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))
 
 export const OilImportSchema = z.object({
-  lab: z.string({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
-  csv: z.string({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
+  lab: line({ error: 'lab is required' }).trim().min(1, { error: 'lab is required' }).max(120, { error: 'lab must be at most 120 characters' }),
+  csv: multiline({ error: 'csv must be the text of the file' }).min(1, { error: 'csv is empty' }).max(5_000_000, { error: 'csv must be at most 5 MB' }),
   mapping: OilCsvMappingSchema,
   /** volume the file's particle counts refer to; per mL when not given */
   particleBasis: z.enum(PARTICLE_BASES, { error: 'particleBasis must be per_ml or per_100ml' }).optional(),
@@ -72,8 +73,8 @@ export const OilImportSchema = z.object({
 })
 
 export const OilMappingSaveSchema = z.object({
-  lab: z.string().trim().min(1, { error: 'lab is required' }).max(120),
-  headers: z.array(z.string().max(200)).min(1, { error: 'headers are required' }).max(200),
+  lab: line().trim().min(1, { error: 'lab is required' }).max(120),
+  headers: z.array(line().max(200)).min(1, { error: 'headers are required' }).max(200),
   mapping: OilCsvMappingSchema,
   particleBasis: z.enum(PARTICLE_BASES, { error: 'particleBasis must be per_ml or per_100ml' }).optional(),
 })

@@ -1,5 +1,6 @@
 // Schemas shared by the teardown forms and the teardown API.
 import { z } from 'zod'
+import { line, multiline } from '../text'
 import { CHARACTERISTIC_UNITS, DISPOSITIONS, TEARDOWN_CONDITIONS } from '../domain/teardown'
 
 export const TEARDOWN_REASONS = ['life due', 'over-rev inspection', 'oil alarm', 'failure', 'scheduled'] as const
@@ -16,7 +17,7 @@ export const TEARDOWN_SIGNERS = ['supplier_engineer', 'mechanic'] as const
 export const PHOTO_MAX_BYTES = 8 * 1024 * 1024
 export const PHOTO_TYPES = ['image/png', 'image/jpeg', 'image/webp'] as const
 
-const text = (max: number) => z.string().trim().max(max, `must be at most ${max} characters`)
+const text = (max: number) => multiline().trim().max(max, `must be at most ${max} characters`)
 
 export const TeardownStartSchema = z.object({
   engineId: z.number({ error: 'must be a number' }).int().positive(),
@@ -26,7 +27,7 @@ export const TeardownStartSchema = z.object({
 
 export const MeasurementSchema = z.object({
   componentId: z.number({ error: 'must be a number' }).int().positive(),
-  key: z.string().trim().min(1, 'is required').max(60),
+  key: line().trim().min(1, 'is required').max(60),
   value: z.number({ error: 'must be a number' }).finite('must be a finite number'),
   // Optional: the unit the value was read in, converted to the characteristic's unit (mm <-> um).
   unit: z.enum(CHARACTERISTIC_UNITS, { error: `must be one of ${CHARACTERISTIC_UNITS.join(', ')}` }).optional(),
@@ -34,7 +35,7 @@ export const MeasurementSchema = z.object({
 
 export const FindingSchema = z.object({
   componentId: z.number({ error: 'must be a number' }).int().positive(),
-  condition: z.string().refine((c) => TEARDOWN_CONDITIONS.includes(c), { message: `must be one of ${TEARDOWN_CONDITIONS.join(', ')}` }),
+  condition: line().refine((c) => TEARDOWN_CONDITIONS.includes(c), { message: `must be one of ${TEARDOWN_CONDITIONS.join(', ')}` }),
   note: text(2000).nullable().default(null),
   disposition: z.enum(DISPOSITIONS, { error: `must be one of ${DISPOSITIONS.join(', ')}` }),
 })
@@ -44,10 +45,10 @@ export const FindingUpdateSchema = FindingSchema.omit({ componentId: true })
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')
 
 export const SwapSchema = z.object({
-  position: z.string().trim().min(1, 'is required').max(40),
-  serial: z.string().trim().min(1, 'is required').max(60),
-  reason: z.string().trim().min(3, 'say why the part is changed (at least 3 characters)').max(500),
-  overrideReason: z.string().trim().min(3, 'must be at least 3 characters').max(500).optional(),
+  position: line().trim().min(1, 'is required').max(40),
+  serial: line().trim().min(1, 'is required').max(60),
+  reason: line().trim().min(3, 'say why the part is changed (at least 3 characters)').max(500),
+  overrideReason: line().trim().min(3, 'must be at least 3 characters').max(500).optional(),
 })
 
 export const SignOffSchema = z.object({

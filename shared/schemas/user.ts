@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { line } from '../text'
 import { ROLES } from '../roles'
 
 // The commonest passwords refused outright (a short list; length does most of the work).
@@ -11,23 +12,22 @@ const COMMON_PASSWORDS = new Set([
 
 export const PASSWORD_MIN_LENGTH = 10
 
-export const PasswordSchema = z
-  .string()
+export const PasswordSchema = line()
   .min(PASSWORD_MIN_LENGTH, `must be at least ${PASSWORD_MIN_LENGTH} characters`)
   .max(200, 'must be at most 200 characters')
   .refine((p) => !COMMON_PASSWORDS.has(p.toLowerCase()), 'is one of the commonest passwords: choose another')
   .refine((p) => new Set(p).size >= 4, 'needs more than three different characters')
 
-export const EmailSchema = z.string().trim().toLowerCase().email('must be an e-mail address').max(190)
+export const EmailSchema = line().trim().toLowerCase().email('must be an e-mail address').max(190)
 
 export const SignInSchema = z.object({
   email: EmailSchema,
-  password: z.string().min(1, 'is required').max(200),
+  password: line().min(1, 'is required').max(200),
 })
 
 export const UserCreateSchema = z.object({
   email: EmailSchema,
-  name: z.string().trim().min(2, 'must be at least 2 characters').max(120),
+  name: line().trim().min(2, 'must be at least 2 characters').max(120),
   role: z.enum(ROLES),
   organisationId: z.coerce.number().int().positive(),
   password: PasswordSchema,
@@ -35,7 +35,7 @@ export const UserCreateSchema = z.object({
 
 export const UserUpdateSchema = z
   .object({
-    name: z.string().trim().min(2).max(120).optional(),
+    name: line().trim().min(2).max(120).optional(),
     role: z.enum(ROLES).optional(),
     active: z.boolean().optional(),
     password: PasswordSchema.optional(),
@@ -43,7 +43,7 @@ export const UserUpdateSchema = z
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')
 
 export const OrganisationCreateSchema = z.object({
-  name: z.string().trim().min(2).max(120),
+  name: line().trim().min(2).max(120),
   kind: z.enum(['supplier', 'team']),
   supplierId: z.coerce.number().int().positive().nullable().optional(),
 })

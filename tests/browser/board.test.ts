@@ -4,7 +4,7 @@ import { parse as parseCsv } from 'csv-parse/sync'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { launch, screenshot, signedInPage, TABLET, LAPTOP } from './browser'
-import { signIn, USERS } from '../e2e/helpers'
+import { db, signIn, USERS } from '../e2e/helpers'
 
 let browser: Browser
 beforeAll(async () => {
@@ -63,6 +63,33 @@ describe('fleet life board in Chromium', () => {
       expect(Number(rows[i]!.hours_since_rebuild)).toBeCloseTo(e.hoursSinceRebuild, 2)
       expect(rows[i]!.status).toBe(e.worst.status)
       expect(rows[i]!.governing_limit).toBe(e.worst.governing?.label ?? '')
+    }
+  })
+
+  it('neutralises a cell that a spreadsheet would run as a formula, and keeps numbers numbers', async () => {
+    // a text that reached the data (here an engine's chassis) and starts with "="
+    const engine = await db()('engines').where('serial', 'KV8-1001').first()
+    await db()('engines').where('id', engine.id).update({ chassis: '=cmd|x!A1' })
+    await db()('life_revision').where('id', 1).increment('revision', 1)
+    try {
+      const page = await signedInPage(browser, USERS.supplierEngineer)
+      await page.goto('/?q=KV8-1001')
+      await page.locator('[data-test=board-row]').first().waitFor()
+      const [download] = await Promise.all([page.waitForEvent('download'), page.click('[data-test=export-csv]')])
+      const text = readFileSync((await download.path())!, 'utf8')
+      await page.close()
+      const rows = parseCsv(text, { columns: true, skip_empty_lines: true }) as Record<string, string>[]
+      const row = rows.find((r) => r.serial === 'KV8-1001')!
+      expect(row.chassis).toBe("'=cmd|x!A1")
+      // nothing in the file starts a cell with a formula trigger, numbers aside
+      for (const r of rows) for (const [k, v] of Object.entries(r)) {
+        if (/^[=+\-@\t\r]/.test(v)) expect(Number.isFinite(Number(v)), `${k}: ${v}`).toBe(true)
+      }
+      expect(Number.isFinite(Number(row.worst_used_percent))).toBe(true)
+      expect(Number.isFinite(Number(row.hours_total))).toBe(true)
+    } finally {
+      await db()('engines').where('id', engine.id).update({ chassis: engine.chassis })
+      await db()('life_revision').where('id', 1).increment('revision', 1)
     }
   })
 })

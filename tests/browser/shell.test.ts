@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { launch, screenshot, signedInPage, TABLET } from './browser'
-import { USERS } from '../e2e/helpers'
+import { signIn, USERS } from '../e2e/helpers'
 
 let browser: Browser
 beforeAll(async () => {
@@ -40,6 +40,27 @@ describe('the shell in Chromium', () => {
     const page = await signedInPage(browser, USERS.raceA)
     const nav = await page.locator('nav[aria-label=Main] a').allTextContents()
     expect(nav.map((n) => n.trim())).not.toContain('Users')
+    await page.close()
+  })
+
+  it('opens the account page from the name, lists where the user is signed in, and signs out everywhere', async () => {
+    const other = await signIn(USERS.mechanicA) // the same user on another device
+    const page = await signedInPage(browser, USERS.mechanicA)
+    await page.click('[data-test=whoami]')
+    await page.waitForURL(/\/settings\/account/)
+    await page.locator('[data-test=session-row]').first().waitFor()
+    expect(await page.locator('[data-test=session-row]').count()).toBeGreaterThanOrEqual(2)
+    expect(await page.locator('[data-test=this-browser]').count()).toBe(1)
+    expect(await page.locator('[data-test=session-rules]').textContent()).toMatch(/30 minutes without use, 12 hours after signing in/)
+    await screenshot(page, 'account-laptop')
+    await page.setViewportSize(TABLET)
+    await screenshot(page, 'account-tablet')
+    await page.click('[data-test=sign-out-everywhere]')
+    await page.waitForURL(/\/login/)
+    // the other device is signed out as well, and this browser cannot go back in
+    expect((await other.get('/api/me')).status).toBe(401)
+    await page.goto('/')
+    await page.waitForURL(/\/login/)
     await page.close()
   })
 })

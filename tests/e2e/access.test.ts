@@ -52,6 +52,7 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/logger-profiles': WRITERS,
   '/api/me': ALL,
   '/api/me/alert-prefs': ALL,
+  '/api/me/sessions': ALL,
   '/api/oil/engines/[id]': ALL,
   '/api/oil': ALL,
   '/api/oil/limits/[id]': ALL,

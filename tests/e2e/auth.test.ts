@@ -40,10 +40,11 @@ describe('sign-in', () => {
     const client = await signIn(USERS.raceA)
     const cookie = client.cookie
     await client.post('/api/auth/logout')
+    expect((await client.get('/api/me')).status).toBe(401)
+    // Sign-out ends the session on the server: a copy of the cookie kept elsewhere is refused too.
     const stale = new Client()
     stale.cookie = cookie
-    // A sealed cookie cannot be revoked by the server alone, so sign-out is client-side; deactivation (below) is server-side.
-    expect((await client.get('/api/me')).status).toBe(401)
+    expect((await stale.get('/api/me')).status).toBe(401)
   })
 })
 
@@ -83,11 +84,79 @@ describe('deactivated users', () => {
     const after = await leaver.get('/api/me')
     expect(after.status).toBe(401)
     expect(after.body.message).toBe('Your session has ended: sign in again')
+    // refused like any wrong password: the answer does not confirm the password
     const again = await new Client().post('/api/auth/login', { email, password: 'leaver-password-2026' })
     expect(again.status).toBe(401)
-    expect(again.body.message).toMatch(/deactivated/)
+    expect(again.body.message).toBe('E-mail or password is wrong.')
     const audit = await db()('audit_log').where({ entity: 'user', entity_id: String(created.body.id), action: 'update' }).first()
     expect(typeof audit.after_value === 'string' ? JSON.parse(audit.after_value) : audit.after_value).toMatchObject({ active: false })
+  })
+})
+
+describe('a deactivated account confirms nothing', () => {
+  it('answers the right password exactly as a wrong one, and as an unknown e-mail', async () => {
+    const admin = await signIn(USERS.admin)
+    const email = uniqueEmail('dormant')
+    const password = 'dormant-password-2026'
+    const created = await admin.post('/api/users', { email, name: 'Dormant Account', role: 'mechanic', organisationId: 2, password })
+    expect(created.status).toBe(201)
+    expect((await admin.patch(`/api/users/${created.body.id}`, { active: false })).status).toBe(200)
+
+    const answer = async (e: string, p: string) => {
+      const res = await new Client().post('/api/auth/login', { email: e, password: p })
+      return { status: res.status, body: res.body, type: res.headers.get('content-type'), cookie: res.headers.getSetCookie().length }
+    }
+    const rightPassword = await answer(email, password)
+    const wrongPassword = await answer(email, 'not-the-password-26')
+    const unknown = await answer(uniqueEmail('nobody'), password)
+    expect(rightPassword.status).toBe(401)
+    expect(rightPassword.body.message).toBe('E-mail or password is wrong.')
+    expect(rightPassword).toEqual(wrongPassword)
+    expect(rightPassword).toEqual(unknown)
+    expect(JSON.stringify(rightPassword.body)).not.toMatch(/deactivat/i)
+    // and both count as failures towards the account's lock, as any wrong password does
+    const row = await db()('sign_in_throttle').where('throttle_key', `account:${email}`).first()
+    expect(row.failures).toBe(2)
+  })
+})
+
+describe('the per-address throttle (one NAT or proxy for a whole team)', () => {
+  it('locks an address after 20 failures for accounts never signed in from it, but not for those that were', async () => {
+    const admin = await signIn(USERS.admin)
+    const make = async (prefix: string) => {
+      const email = uniqueEmail(prefix)
+      const password = `${prefix}-password-2026`
+      expect((await admin.post('/api/users', { email, name: `Behind ${prefix}`, role: 'race_engineer', organisationId: 2, password })).status).toBe(201)
+      return { email, password }
+    }
+    const regular = await make('regular') // has signed in from this address before
+    const newcomer = await make('newcomer') // never has
+    expect((await new Client().post('/api/auth/login', regular)).status).toBe(200)
+    await db()('sign_in_throttle').where('throttle_key', 'like', 'address:%').delete()
+    try {
+      // someone behind the same address guesses at 20 accounts
+      for (let i = 0; i < 20; i++) {
+        const res = await new Client().post('/api/auth/login', { email: uniqueEmail('guess'), password: 'guessing-password' })
+        expect(res.status).toBe(401)
+      }
+      const spray = await new Client().post('/api/auth/login', { email: uniqueEmail('guess'), password: 'guessing-password' })
+      expect(spray.status).toBe(429)
+      const lock = await db()('sign_in_throttle').where('throttle_key', 'address:127.0.0.1').first()
+      expect(lock.failures).toBe(20)
+      expect(lock.locked_until).not.toBeNull()
+
+      // the regular signs in all the same, and a typo of theirs is an ordinary wrong password
+      expect((await new Client().post('/api/auth/login', { email: regular.email, password: 'typo-password-2026' })).status).toBe(401)
+      const ok = await new Client().post('/api/auth/login', regular)
+      expect(ok.status).toBe(200)
+      // the newcomer waits for the lock to pass, as the guesser does
+      expect((await new Client().post('/api/auth/login', newcomer)).status).toBe(429)
+      // the regular's success does not unlock the address for everyone
+      expect((await new Client().post('/api/auth/login', newcomer)).status).toBe(429)
+    } finally {
+      await db()('sign_in_throttle').where('throttle_key', 'like', 'address:%').delete()
+    }
+    expect((await new Client().post('/api/auth/login', newcomer)).status).toBe(200)
   })
 })
 

@@ -3,7 +3,7 @@
 // moments and starting a further instance on the same database and file store.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { BASE, db, signIn } from './helpers'
-import { startExtraServer, type ExtraServer } from './servers'
+import { startServer, type ExtraServer } from './servers'
 
 const MAPPING = { columns: { time: 'time_s', rpm: 'engine_rpm' }, units: { time: 'seconds', speed: 'kmh', temperature: 'C', pressure: 'bar' }, decimal: '.' }
 let sessionId: number
@@ -31,7 +31,7 @@ describe('exact equivalent hours for sessions stored before', () => {
     const before = await db()('sessions').where('id', sessionId).first('rpm_moments')
     expect(before.rpm_moments).not.toBeNull()
     await db()('sessions').where('id', sessionId).update({ rpm_moments: null })
-    extra = await startExtraServer()
+    extra = await startServer()
     await expect.poll(async () => (await db()('sessions').where('id', sessionId).first('rpm_moments')).rpm_moments, { timeout: 30_000, interval: 250 }).not.toBeNull()
     const after = await db()('sessions').where('id', sessionId).first('rpm_moments')
     expect(Buffer.compare(after.rpm_moments, before.rpm_moments)).toBe(0)

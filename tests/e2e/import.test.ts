@@ -100,6 +100,42 @@ describe('logger import', () => {
     expect(storedFiles()).toBe(files)
   })
 
+  it('takes a file another team imported without telling anything of that team, and shows the supplier the link', async () => {
+    // one file, held by two teams (a shared test): Redfern first, then Tidewater
+    const body = trace([{ rpm: 5500, seconds: 1 }])
+    const first = await upload(race, body)
+    expect(first.status).toBe(201)
+    const redfernSession = first.body.session
+    const tidewater = await signIn(USERS.raceB)
+    const tidewaterEngine = (await db()('engines').where('serial', 'KV8-1201').first()).id
+    const second = await upload(tidewater, body, { engineId: tidewaterEngine })
+    const said = JSON.stringify(second.body)
+    // nothing of Redfern's session: not its serial, id, or time
+    expect(said).not.toContain('KT4-2102')
+    expect(said).not.toContain(`session ${redfernSession.id}`)
+    expect(said).not.toContain(redfernSession.startedAt.slice(0, 16).replace('T', ' '))
+    expect(said).not.toMatch(/already imported/)
+    expect(second.status).toBe(201)
+    expect(second.body.session.id).not.toBe(redfernSession.id)
+    // Tidewater still cannot open Redfern's session
+    expect((await tidewater.get(`/api/sessions/${redfernSession.id}`)).status).toBe(404)
+    // each team is refused its own copy again, naming its own session only
+    const again = await upload(tidewater, body, { engineId: tidewaterEngine })
+    expect(again.status).toBe(409)
+    expect(again.body.message).toContain(`session ${second.body.session.id}`)
+    expect(again.body.message).toContain('KV8-1201')
+    expect(JSON.stringify(again.body)).not.toContain('KT4-2102')
+    // the supplier sees both teams, so it is shown the link
+    const supplier = await signIn(USERS.supplierEngineer)
+    const supplierEngine = (await db()('engines').where('serial', 'KT4-2001').first()).id
+    const seen = await upload(supplier, body, { engineId: supplierEngine })
+    expect(seen.status).toBe(409)
+    expect(seen.body.message).toContain(`session ${redfernSession.id}`)
+    expect(seen.body.message).toContain('KT4-2102')
+    expect(seen.body.data.sessionId).toBe(redfernSession.id)
+    expect((await supplier.get(`/api/sessions/${seen.body.data.sessionId}`)).status).toBe(200)
+  })
+
   it('skips a few bad rows with a warning and counts them', async () => {
     const rows = trace([{ rpm: 5750, seconds: 20 }]).split('\n')
     rows[500] = '4.99,5750x,180,4.5'

@@ -1,55 +1,26 @@
 // Two instances of the same build on one database, as behind a load balancer: a second server
 // process is started here beside the one the suite runs (server A). A session signed in on A
-// works on B (sealed cookie, same secret, no session store), and the sign-in throttle counted
-// through A holds on B (it lives in the database, not in a process).
-import { spawn, type ChildProcess } from 'node:child_process'
-import { createServer } from 'node:net'
+// works on B (sealed cookie, same secret; the session row is in the shared database), a session
+// ended on one instance is ended on the other, and the sign-in throttle counted through A holds
+// on B (it lives in the database, not in a process).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { BASE, Client, db, signIn, uniqueEmail, USERS } from './helpers'
+import { startServer, type ExtraServer } from './servers'
 
-let serverB: ChildProcess | undefined
+let serverB: ExtraServer | undefined
 let baseB = ''
 const created: string[] = []
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = createServer()
-    s.once('error', reject)
-    s.listen(0, '127.0.0.1', () => {
-      const port = (s.address() as { port: number }).port
-      s.close(() => resolve(port))
-    })
-  })
-}
-
 beforeAll(async () => {
-  const port = await freePort()
-  baseB = `http://127.0.0.1:${port}`
-  serverB = spawn(process.execPath, ['.output/server/index.mjs'], {
-    // same database, same session secret and file store as server A; the scheduled job stays off
-    env: { ...process.env, PORT: String(port), NITRO_HOST: '127.0.0.1', NUXT_PUBLIC_URL: baseB, NUXT_ALERTS_ENABLED: 'false' },
-    stdio: ['ignore', 'ignore', 'inherit'],
-  })
-  const deadline = Date.now() + 60_000
-  for (;;) {
-    try {
-      if ((await fetch(`${baseB}/api/health`)).ok) break
-    } catch {}
-    if (serverB.exitCode !== null) throw new Error(`server B exited with ${serverB.exitCode}`)
-    if (Date.now() > deadline) throw new Error('server B did not become ready')
-    await new Promise((r) => setTimeout(r, 250))
-  }
+  serverB = await startServer()
+  baseB = serverB.base
 })
 
 afterAll(async () => {
   // the throttle rows this file made (account keys of its users, the loopback address key)
   await db()('sign_in_throttle').whereIn('throttle_key', created.map((e) => `account:${e}`)).delete()
   await db()('sign_in_throttle').where('throttle_key', 'like', 'address:%').delete()
-  if (serverB && serverB.exitCode === null) {
-    const exited = new Promise((r) => serverB!.once('exit', r))
-    serverB.kill('SIGTERM')
-    await exited
-  }
+  await serverB?.stop()
 })
 
 describe('two instances on one database', () => {
@@ -57,7 +28,7 @@ describe('two instances on one database', () => {
     expect(baseB).not.toBe(BASE)
     expect((await fetch(`${BASE}/api/health`)).status).toBe(200)
     expect((await fetch(`${baseB}/api/health`)).status).toBe(200)
-    expect(serverB!.pid).toBeGreaterThan(0)
+    expect(serverB!.process.pid).toBeGreaterThan(0)
   })
 
   it('accept a session cookie signed in on the other one', async () => {
@@ -95,5 +66,53 @@ describe('two instances on one database', () => {
     expect((await new Client().post('/api/auth/login', { email, password })).status).toBe(429)
     const row = await db()('sign_in_throttle').where('throttle_key', `account:${email}`).first()
     expect(row.failures).toBe(5)
+  })
+
+  it('end a session signed out on either one: the replayed cookie answers 401 on both, for reads and writes', async () => {
+    const profile = { name: 'replay probe', header: ['t', 'rpm'], mapping: { columns: { time: 't', rpm: 'rpm' }, units: {}, decimal: '.' } }
+    for (const [signInOn, signOutOn] of [[BASE, baseB], [baseB, BASE]] as const) {
+      const user = new Client(signInOn)
+      expect((await user.post('/api/auth/login', { email: USERS.raceB, password: 'ledger-demo-2026' })).status).toBe(200)
+      const sealed = user.cookie
+      // live on both before the sign-out
+      for (const base of [BASE, baseB]) {
+        const copy = new Client(base)
+        copy.cookie = sealed
+        expect((await copy.get('/api/me')).status, base).toBe(200)
+      }
+      const out = new Client(signOutOn)
+      out.cookie = sealed
+      expect((await out.post('/api/auth/logout')).status).toBe(200)
+      expect(out.cookie).toBe('') // the browser's copy is cleared...
+      for (const base of [BASE, baseB]) {
+        // ...and a copy kept elsewhere no longer reads or writes, on either instance
+        const replay = new Client(base)
+        replay.cookie = sealed
+        const me = await replay.get('/api/me')
+        expect(me.status, `GET /api/me on ${base}`).toBe(401)
+        expect(me.body.message).toBe('Your session has ended: sign in again')
+        replay.cookie = sealed
+        expect((await replay.post('/api/logger-profiles', profile)).status, `POST on ${base}`).toBe(401)
+      }
+    }
+    expect(Number((await db()('logger_profiles').where('name', 'replay probe').count({ n: '*' }).first())!.n)).toBe(0)
+  })
+
+  it('end every session of a user on both when the user signs out everywhere on one', async () => {
+    const admin = await signIn(USERS.admin)
+    const email = uniqueEmail('everywhere')
+    created.push(email)
+    const password = 'everywhere-pass-2026'
+    expect((await admin.post('/api/users', { email, name: 'Two Laptops', role: 'race_engineer', organisationId: 3, password })).status).toBe(201)
+    const onA = await signIn(email, password)
+    const onB = new Client(baseB)
+    expect((await onB.post('/api/auth/login', { email, password })).status).toBe(200)
+    const res = await onB.delete('/api/me/sessions')
+    expect(res.status).toBe(200)
+    expect(res.body.ended).toBe(2)
+    expect((await onA.get('/api/me')).status).toBe(401)
+    const again = new Client(baseB)
+    again.cookie = onA.cookie
+    expect((await again.get('/api/me')).status).toBe(401)
   })
 })

@@ -1,4 +1,5 @@
-// Extra app instances beside the suite's own server (same build, database, secret and file store).
+// Extra app processes beside the one the suite runs (server A): the same build on the same
+// database, with their own settings, as another instance behind a load balancer would be.
 import { spawn, type ChildProcess } from 'node:child_process'
 import { createServer } from 'node:net'
 
@@ -19,11 +20,12 @@ export interface ExtraServer {
   stop(): Promise<void>
 }
 
-/** Starts the built server on a free port (the scheduled jobs stay off) and waits until it answers. */
-export async function startExtraServer(env: Record<string, string> = {}): Promise<ExtraServer> {
+/** Starts `.output/server/index.mjs` on a free port with `env` over the suite's environment. */
+export async function startServer(env: Record<string, string> = {}): Promise<ExtraServer> {
   const port = await freePort()
   const base = `http://127.0.0.1:${port}`
   const child = spawn(process.execPath, ['.output/server/index.mjs'], {
+    // same database, session secret and file store as server A; the scheduled job stays off
     env: { ...process.env, PORT: String(port), NITRO_HOST: '127.0.0.1', NUXT_PUBLIC_URL: base, NUXT_ALERTS_ENABLED: 'false', ...env },
     stdio: ['ignore', 'ignore', 'inherit'],
   })

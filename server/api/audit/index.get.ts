@@ -1,8 +1,9 @@
 import { z } from 'zod'
+import { line } from '#shared/text'
 
 const Query = z.object({
-  entity: z.string().trim().max(60).optional(),
-  action: z.string().trim().max(60).optional(),
+  entity: line().trim().max(60).optional(),
+  action: line().trim().max(60).optional(),
   userId: z.coerce.number().int().positive().optional(),
   from: z.iso.date().optional(),
   to: z.iso.date().optional(),

@@ -1,14 +1,27 @@
 import { SignInSchema } from '#shared/schemas/user'
-import { clearFailures, recordFailure, signInKeys, throttleWait } from '../../utils/throttle'
+import type { SessionCookie } from '../../utils/auth-session'
+import { clearFailures, keysToCheck, recordFailure, rememberAddress, signedInFrom, signInKeys, throttleWait } from '../../utils/throttle'
+
+// One answer for every refused sign-in: an unknown e-mail, a wrong password and a deactivated
+// account (right password or not) cannot be told apart by status, message or timing.
+const REFUSED = 'E-mail or password is wrong.'
+
+// A password is checked against this hash when the e-mail is unknown, so that answer takes as
+// long as a wrong password does.
+let dummyHash: Promise<string> | undefined
+const hashForUnknown = () => (dummyHash ??= hashPassword(`no-such-account-${Math.random()}`))
 
 // Public by nature: the one route that creates a session.
 export default defineEventHandler(async (event) => {
   const { email, password } = await readValidBody(event, SignInSchema)
   const db = useDb()
-  const ip = getRequestIP(event, { xForwardedFor: false }) ?? 'unknown'
-  const keys = signInKeys(email, ip)
+  const address = clientAddress(event)
+  const keys = signInKeys(email, address)
+  const user = await db('users').where({ email }).first()
 
-  const wait = await throttleWait(db, keys)
+  // (the same reads for an unknown e-mail as for a known one)
+  const known = await signedInFrom(db, user?.id ?? 0, address)
+  const wait = await throttleWait(db, keysToCheck(keys, known))
   if (wait > 0) {
     throw createError({
       statusCode: 429,
@@ -17,15 +30,19 @@ export default defineEventHandler(async (event) => {
     })
   }
 
-  const user = await db('users').where({ email }).first()
-  const ok = user ? await verifyPassword(user.password_hash, password) : false
+  // Always one password check, whoever asks.
+  const ok = await verifyPassword(user?.password_hash ?? (await hashForUnknown()), password)
   if (!user || !ok || !user.active) {
     await recordFailure(db, keys)
-    const message = user && ok && !user.active ? 'This account is deactivated: ask your team manager or an admin.' : 'E-mail or password is wrong.'
-    throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message })
+    throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message: REFUSED })
   }
   await clearFailures(db, keys)
-  // A fresh sealed cookie at every sign-in (the old one, if any, is replaced).
-  await replaceUserSession(event, { user: { id: user.id, sessionVersion: user.session_version }, loggedInAt: Date.now() })
+  await rememberAddress(db, user.id, address)
+
+  // A sign-in in a browser that held a session ends that one (its cookie is replaced).
+  const previous = (await getUserSession(event)) as SessionCookie
+  if (typeof previous.sid === 'string') await endSession(db, previous.sid, 'replaced')
+  const sid = await startSession(db, user.id, { address, userAgent: getRequestHeader(event, 'user-agent') })
+  await replaceUserSession(event, { user: { id: user.id, sessionVersion: user.session_version }, sid, loggedInAt: Date.now() } satisfies SessionCookie)
   return { ok: true }
 })

@@ -1,9 +1,10 @@
 import { z } from 'zod'
+import { line } from '#shared/text'
 import { FLEET_READERS } from '#shared/roles'
 import { fleetLife } from '../../services/life'
 
 const Query = z.object({
-  q: z.string().trim().max(60).optional(),
+  q: line().trim().max(60).optional(),
   status: z.enum(['serviceable', 'installed', 'quarantined', 'scrapped']).optional(),
   typeId: z.coerce.number().int().positive().optional(),
 })

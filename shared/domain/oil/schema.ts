@@ -3,6 +3,7 @@
  * Every error names its field, in the issue path and in the message.
  */
 import { z } from 'zod'
+import { line } from '../../text'
 import { OIL_ELEMENTS, type OilSampleValues } from './limits'
 import { parseGrade } from './viscosity'
 
@@ -95,9 +96,8 @@ export function oilSampleSchema(ctx: { now: Date; builtAt: Date | null }): z.Zod
   const builtMs = ctx.builtAt ? ctx.builtAt.getTime() : null
 
   const shape = z.object({
-    sampleId: z.string({ error: 'sampleId is required' }).trim().min(1, { error: 'sampleId is required' }).max(64, { error: 'sampleId must be at most 64 characters' }),
-    sampledAt: z
-      .string({ error: 'sampledAt must be a date' })
+    sampleId: line({ error: 'sampleId is required' }).trim().min(1, { error: 'sampleId is required' }).max(64, { error: 'sampleId must be at most 64 characters' }),
+    sampledAt: line({ error: 'sampledAt must be a date' })
       .trim()
       .refine((s) => !Number.isNaN(Date.parse(s)), { error: 'sampledAt must be a date such as 2025-06-01' })
       .refine((s) => Number.isNaN(Date.parse(s)) || Date.parse(s) <= nowMs, { error: 'sampledAt cannot be in the future' })
@@ -115,7 +115,7 @@ export function oilSampleSchema(ctx: { now: Date; builtAt: Date | null }): z.Zod
     p14: numberField('p14', 0, MAX_PARTICLES_PER_ML, 'particles/mL'),
     grade: z.preprocess(
       (v) => (v === undefined || v === null || (typeof v === 'string' && v.trim() === '') ? null : v),
-      z.string({ error: 'grade must be text such as 5W-40' })
+      line({ error: 'grade must be text such as 5W-40' })
         .trim()
         .refine((g) => parseGrade(g) !== null, { error: 'grade must be an SAE J300 grade such as 5W-40 or 40' })
         .nullable(),
