@@ -3,7 +3,6 @@
 // fleet life from the same service the server uses.
 import { spawn } from 'node:child_process'
 import { randomUUID } from 'node:crypto'
-import { createServer } from 'node:net'
 import MailDev from 'maildev'
 import nodemailer from 'nodemailer'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -12,6 +11,7 @@ import { deliverOutbox, type MailTransport } from '../../tasks/deliver-outbox'
 import { LIFE_CHECK_LOCK, runLifeCheck, type Finding, type LifeCheckDeps } from '../../tasks/life-check'
 import { mariadbLock, noLock } from '../../tasks/lock'
 import { BASE, db, signIn, USERS, type Client } from './helpers'
+import { freePort } from './servers'
 
 const SMTP_PORT = Number(process.env.NUXT_SMTP_PORT || 1027)
 const MAIL_WEB = `http://127.0.0.1:${process.env.CL_MAILDEV_WEB || 1082}`
@@ -78,16 +78,6 @@ function extraFinding(engine: { id: number; serial: string }, tag: string, kind:
       message: `Test finding ${tag} for ${engine.serial}.`,
     },
   }
-}
-
-async function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const s = createServer()
-    s.listen(0, '127.0.0.1', () => {
-      const port = (s.address() as any).port
-      s.close(() => resolve(port))
-    })
-  })
 }
 
 let supplier: Client

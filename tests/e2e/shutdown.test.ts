@@ -2,21 +2,9 @@
 // still arriving; the import is finished and stored, new connections are refused, and the process
 // exits by itself (no forced exit), which it can only do once the pool is closed.
 import { spawn } from 'node:child_process'
-import { createServer } from 'node:net'
 import { describe, expect, it } from 'vitest'
 import { db, DEMO_PASSWORD } from './helpers'
-
-/** A port nothing listens on; a fixed one can be the shared test server's own (CL_TEST_PORT). */
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = createServer()
-    s.once('error', reject)
-    s.listen(0, '127.0.0.1', () => {
-      const port = (s.address() as { port: number }).port
-      s.close(() => resolve(port))
-    })
-  })
-}
+import { freePort } from './servers'
 
 describe('graceful shutdown', () => {
   it('finishes the request in flight, refuses new ones, closes the pool and exits cleanly', async () => {
