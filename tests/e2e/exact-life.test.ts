@@ -8,7 +8,7 @@ import { runLifeCheck } from '../../tasks/life-check'
 import { mariadbLock } from '../../tasks/lock'
 import { BASE, db, signIn, type Client } from './helpers'
 
-const ENGINE = 'KT4-2103' // a Redfern engine on the shelf: no other test runs it or swaps its parts
+const ENGINE = 'KT4-2001' // the supplier's own test engine: no other test runs it or swaps its parts
 const HZ = 20
 const HEADER = 'time_s,engine_rpm'
 const MAPPING = { columns: { time: 'time_s', rpm: 'engine_rpm' }, units: { time: 'seconds', speed: 'kmh', temperature: 'C', pressure: 'bar' }, decimal: '.' }
@@ -46,7 +46,6 @@ function perSampleEqHours(ref: number, p: number): number {
   return total / 3600
 }
 
-let race: Client
 let engineer: Client
 let engineId: number
 let sessionId: number
@@ -73,7 +72,6 @@ async function lifeCheck() {
 }
 
 beforeAll(async () => {
-  race = await signIn('race@redfern.test')
   engineer = await signIn('engineer@keelbrook.test')
   const engine = await db()('engines').where('serial', ENGINE).first()
   engineId = engine.id
@@ -88,9 +86,9 @@ beforeAll(async () => {
   const bands = originalBands.map((b: any) => (b.id === 'C' ? { ...b, minDurationS: 0.1 } : b))
   expect((await engineer.patch(`/api/engine-types/${engineTypeId}`, { overRevBands: bands })).status).toBe(200)
 
-  for (const rod of await rodsOfEngine()) countsBefore.set(rod.id, (await race.get(`/api/parts/${rod.id}`)).body.part.overRevCounts)
+  for (const rod of await rodsOfEngine()) countsBefore.set(rod.id, (await engineer.get(`/api/parts/${rod.id}`)).body.part.overRevCounts)
   const q = new URLSearchParams({ engineId: String(engineId), kind: 'test', startedAt, fileName: 'exact-life.csv', mapping: JSON.stringify(MAPPING) })
-  const res = await fetch(`${BASE}/api/imports?${q}`, { method: 'POST', headers: { cookie: race.cookie, 'content-type': 'text/csv', origin: BASE }, body: CSV })
+  const res = await fetch(`${BASE}/api/imports?${q}`, { method: 'POST', headers: { cookie: engineer.cookie, 'content-type': 'text/csv', origin: BASE }, body: CSV })
   const body = await res.json()
   expect(res.status, JSON.stringify(body)).toBe(201)
   sessionId = body.session.id
@@ -113,7 +111,7 @@ afterAll(async () => {
 
 describe('equivalent hours of a stored session', () => {
   it('equal the per-sample integral within 0.1 % at the engine type\'s reference rpm and the crank\'s exponent', async () => {
-    const view = (await race.get(`/api/sessions/${sessionId}`)).body
+    const view = (await engineer.get(`/api/sessions/${sessionId}`)).body
     expect(view.session.eqExact).toBe(true)
     const crank = view.cost.find((c: any) => c.typeName === 'Crankshaft')
     const exact = perSampleEqHours(originalReference, originalExponent)
@@ -124,7 +122,7 @@ describe('equivalent hours of a stored session', () => {
   it('after a change of exponent and of reference rpm: the new definition, without the raw file, and the same as a fresh import of it', async () => {
     expect((await engineer.patch(`/api/component-types/${crankTypeId}`, { damageExponent: 17 })).status).toBe(200)
     expect((await engineer.patch(`/api/engine-types/${engineTypeId}`, { referenceRpm: 7150 })).status).toBe(200)
-    const view = (await race.get(`/api/sessions/${sessionId}`)).body
+    const view = (await engineer.get(`/api/sessions/${sessionId}`)).body
     const crank = view.cost.find((c: any) => c.typeName === 'Crankshaft')
     const exact = perSampleEqHours(7150, 17)
     expect(Math.abs(crank.eqHours - exact) / exact).toBeLessThan(1e-3)
@@ -142,7 +140,7 @@ describe('equivalent hours of a stored session', () => {
 
 describe('one verdict per over-rev event', () => {
   it('a 0.05 s flick above the inspection and teardown thresholds inside a 0.6 s logged excursion counts once, as logged, everywhere', async () => {
-    const view = (await race.get(`/api/sessions/${sessionId}`)).body
+    const view = (await engineer.get(`/api/sessions/${sessionId}`)).body
     expect(view.session.overRevs).toHaveLength(1)
     const ev = view.session.overRevs[0]
     expect(ev.bandId).toBe('A')
@@ -153,11 +151,11 @@ describe('one verdict per over-rev event', () => {
     expect(ev.secondsAbove.C).toBeCloseTo(0.05, 6)
 
     for (const rod of await rodsOfEngine()) {
-      const part = (await race.get(`/api/parts/${rod.id}`)).body.part
+      const part = (await engineer.get(`/api/parts/${rod.id}`)).body.part
       expect(part.overRevCounts).toEqual(plus(countsBefore.get(rod.id), 'A'))
       expect(part.immediateInspection).toBe(false)
     }
-    const board = (await race.get('/api/board')).body
+    const board = (await engineer.get('/api/board')).body
     const row = board.engines.find((e: any) => e.serial === ENGINE)
     expect(row.overRevFlags.immediateInspection).toBe(false)
     await lifeCheck()
@@ -171,15 +169,15 @@ describe('one verdict per over-rev event', () => {
     expect(parsed(audit.before_value)[0].bandId).toBe('A')
     expect(parsed(audit.after_value)[0].bandId).toBe('C')
 
-    const view = (await race.get(`/api/sessions/${sessionId}`)).body
+    const view = (await engineer.get(`/api/sessions/${sessionId}`)).body
     expect(view.session.overRevs.map((e: any) => e.bandId)).toEqual(['C'])
     const rods = await rodsOfEngine()
     for (const rod of rods) {
-      const part = (await race.get(`/api/parts/${rod.id}`)).body.part
+      const part = (await engineer.get(`/api/parts/${rod.id}`)).body.part
       expect(part.overRevCounts).toEqual(plus(countsBefore.get(rod.id), 'C'))
       expect(part.immediateInspection).toBe(true)
     }
-    const row = (await race.get('/api/board')).body.engines.find((e: any) => e.serial === ENGINE)
+    const row = (await engineer.get('/api/board')).body.engines.find((e: any) => e.serial === ENGINE)
     expect(row.overRevFlags.immediateInspection).toBe(true)
     await lifeCheck()
     // one immediate-inspection alert per part whose type demands it for this band (the four rods and the valve springs)

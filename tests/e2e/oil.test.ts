@@ -41,6 +41,8 @@ beforeAll(async () => {
 afterAll(async () => {
   for (const id of created) await raceB.delete(`/api/oil/samples/${id}`)
   await db()('oil_samples').where('sample_id', 'like', `T-${stamp}-%`).delete()
+  // oil status is part of the cached fleet life: every instance must see the rows gone
+  await db()('life_revision').where('id', 1).increment('revision', 1)
 })
 
 describe('entry by form', () => {
