@@ -6,6 +6,7 @@ import knexFactory from 'knex'
 import { knexConfig } from '../db/knexfile'
 import { momentsBlob, rng, ENGINE_TYPES, SYNTHETIC_FILE_NAME } from '../db/seeds/fleet'
 import { syntheticTrace } from '../db/seeds/traces'
+import { eqCacheOf } from '../shared/domain/rpm-moments'
 import { sh, signIn, startServer, startTestDb } from './server'
 
 const ENGINES = Number(process.env.BENCH_ENGINES ?? 500)
@@ -33,6 +34,8 @@ async function seedLargeFleet(url: string) {
   await knex('engine_type_positions').insert(positions)
 
   const t = ENGINE_TYPES[0]!
+  // as the fleet computation asks for them: every damage exponent of the supplier's part types
+  const exponents = (await knex('component_types').where('supplier_id', supplier.id).distinct('damage_exponent').pluck('damage_exponent')).map(Number).filter((p: number) => p !== 0)
   const start = Date.now() - 400 * 86_400_000
   const batch = <T>(list: T[], n: number) => Array.from({ length: Math.ceil(list.length / n) }, (_, i) => list.slice(i * n, (i + 1) * n))
   for (let e = 0; e < ENGINES; e++) {
@@ -55,6 +58,7 @@ async function seedLargeFleet(url: string) {
         band_width_rpm: t.band_width_rpm,
         histogram: JSON.stringify(trace.histogram),
         rpm_moments: momentsBlob(trace.rpmMoments),
+        eq_cache: JSON.stringify(eqCacheOf(trace.rpmMoments, t.reference_rpm, exponents)),
         over_revs: JSON.stringify(rand() < 0.05 ? [{ bandId: 'A', peakRpm: 9350, durationS: 0.3, startS: 10 }] : []),
         low_oil_pressure: '[]',
         source: 'logger',

@@ -6,6 +6,7 @@ import * as alerts from './20261202_04_alerts'
 import * as oil from './20261202_05_oil'
 import * as teardown from './20261202_06_teardown'
 import * as exactLife from './20261203_01_exact-life'
+import * as eqCache from './20261203_05_eq-cache'
 import * as reciprocatingMassCheck from './20261203_04_reciprocating_mass_check'
 import * as oilHths from './20261203_03_a_oil_hths'
 import * as oilParticleBasis from './20261203_03_b_oil_particle_basis'
@@ -23,6 +24,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202_05_oil': oil,
   '20261202_06_teardown': teardown,
   '20261203_01_exact-life': exactLife,
+  '20261203_05_eq-cache': eqCache,
   '20261203_04_reciprocating_mass_check': reciprocatingMassCheck,
   '20261203_03_a_oil_hths': oilHths,
   '20261203_03_b_oil_particle_basis': oilParticleBasis,

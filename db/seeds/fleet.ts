@@ -2,7 +2,7 @@
 // thirteen engines spread from fresh to due, past sessions with rev histograms, and a calendar
 // with a 12-hour race still to come. Every name here is invented.
 import type { Knex } from 'knex'
-import { encodeMoments, type RpmMoments } from '../../shared/domain/rpm-moments'
+import { encodeMoments, eqCacheOf, type RpmMoments } from '../../shared/domain/rpm-moments'
 import type { TraceSummary } from '../../shared/domain/trace'
 import { syntheticTrace, type PlannedExcursion } from './traces'
 
@@ -154,6 +154,13 @@ const round3 = (x: number) => Math.round(x * 1000) / 1000
 /** What the session page draws from: the trace overview, as a logger import keeps it. */
 function traceDetails(trace: TraceSummary) {
   return JSON.stringify({ overview: trace.overview, durationS: trace.durationS, distanceSource: 'none', rows: trace.samples, skippedRows: 0, warnings: [], gaps: [], gapCount: 0 })
+}
+
+/** The supplier's damage exponents in use (all its part types), as the fleet computation asks for them. */
+const DEMO_EXPONENTS = [...new Set(Object.values(COMPONENT_TYPES).flat().map((c) => c.damage_exponent))].filter((p) => p !== 0)
+
+function eqCacheJson(trace: TraceSummary, referenceRpm: number) {
+  return JSON.stringify(eqCacheOf(trace.rpmMoments, referenceRpm, DEMO_EXPONENTS))
 }
 
 export function momentsBlob(m: RpmMoments): Buffer {
@@ -333,6 +340,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           band_width_rpm: t.band_width_rpm,
           histogram: JSON.stringify(trace.histogram),
           rpm_moments: momentsBlob(trace.rpmMoments),
+          eq_cache: eqCacheJson(trace, t.reference_rpm),
           over_revs: JSON.stringify(overRevs),
           low_oil_pressure: JSON.stringify([]),
           max_rpm: Math.round(trace.maxRpm),
@@ -380,6 +388,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
         band_width_rpm: t.band_width_rpm,
         histogram: JSON.stringify(trace.histogram),
         rpm_moments: momentsBlob(trace.rpmMoments),
+        eq_cache: eqCacheJson(trace, t.reference_rpm),
         over_revs: JSON.stringify(trace.overRevs),
         low_oil_pressure: JSON.stringify([]),
         max_rpm: Math.round(trace.maxRpm),

@@ -121,7 +121,6 @@ export function momentsOf(v: unknown): RpmMoments | null {
   return decodeMoments(v as Uint8Array)
 }
 
-export const SESSION_LIFE_COLUMNS = ['id', 'engine_id', 'event_id', 'started_at', 'running_seconds', 'distance_km', 'histogram', 'rpm_moments', 'over_revs', 'band_width_rpm']
 
 export function toSessionDto(r: any): SessionDto {
   return {

@@ -16,14 +16,13 @@ import { createUsageIndex, type UsageIndex } from '#shared/domain/life-index'
 import type { CanFinishDto, ComponentTypeDto, EngineDetailDto, EngineTypeDto, PartLifeDto } from '#shared/types/fleet'
 import { iso } from '../utils/db'
 import { oilStatusByEngine } from './oil'
+import { loadSessionUsage } from './session-usage'
 import {
-  SESSION_LIFE_COLUMNS,
   lifeConfig,
   lifeRevision,
   limitsOf,
   loadComponentTypes,
   loadEngineTypes,
-  toEngineSession,
   toInstallation,
 } from './fleet-data'
 
@@ -48,7 +47,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     db('engines').select('*'),
     db('installations').select('id', 'component_id', 'engine_id', 'position', 'from_at', 'to_at'),
     db('components').select('id', 'serial', 'component_type_id', 'status', 'inspection_cleared_at'),
-    db('sessions').select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id']),
+    loadSessionUsage(db),
     db('events').where('ends_at', '>', now).orderBy('starts_at'),
     db('event_plans').select('*'),
     db('organisations').where('kind', 'team').select('id', 'name'),
@@ -61,8 +60,7 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
   const engineById = new Map(engineRows.map((e: any) => [e.id, e]))
 
   const sessionsByEngine = new Map<number, SessionRow[]>()
-  for (const r of sessionRows) {
-    const s = toEngineSession(r)
+  for (const s of sessionRows) {
     let list = sessionsByEngine.get(s.engineId)
     if (!list) sessionsByEngine.set(s.engineId, (list = []))
     list.push(s)

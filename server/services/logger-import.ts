@@ -233,6 +233,7 @@ async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxB
       band_width_rpm: type!.bandWidthRpm,
       histogram: JSON.stringify(f.histogram),
       rpm_moments: momentsColumn(f.extras.rpmMoments),
+      eq_cache: null, // evaluated again from the new moments by the next fleet computation
       over_revs: JSON.stringify(f.overRevs),
       low_oil_pressure: JSON.stringify(f.extras.lowOilPressure),
       max_rpm: f.extras.maxRpm,

@@ -5,13 +5,13 @@ import type { Actor } from '../utils/guard'
 import { canSee } from '../utils/guard'
 import { notFound } from '../utils/errors'
 import { iso } from '../utils/db'
-import { SESSION_LIFE_COLUMNS, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toInstallation } from './fleet-data'
+import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toInstallation } from './fleet-data'
+import { loadSessionUsage } from './session-usage'
 import { fleetLife } from './life'
 
 async function sessionsOfEngines(db: Knex, engineIds: number[]) {
   if (!engineIds.length) return []
-  const rows = await db('sessions').whereIn('engine_id', engineIds).select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id'])
-  return rows.map(toEngineSession)
+  return loadSessionUsage(db, (qb) => qb.whereIn('s.engine_id', engineIds))
 }
 
 /** Cumulative life after each session; each session is read with the band width it was binned at. */

@@ -16,7 +16,8 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, forbidden, notFound } from '../utils/errors'
 import { iso, num } from '../utils/db'
 import { fitPart, removePart } from './builds'
-import { SESSION_LIFE_COLUMNS, bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toInstallation } from './fleet-data'
+import { bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toInstallation } from './fleet-data'
+import { loadSessionUsage } from './session-usage'
 import { engineRowFor } from './fleet-scope'
 import { fleetLife } from './life'
 
@@ -243,7 +244,7 @@ export async function projectForNextEvent(trx: Db, engine: any, componentId: num
   // The part's own life, straight from its installations and sessions (never a stale cache).
   const partInst = (await trx('installations').where('component_id', componentId)).map(toInstallation)
   const engineIds = [...new Set([engine.id, ...partInst.map((i) => i.engineId)])]
-  const allSessions = (await trx('sessions').whereIn('engine_id', engineIds).select(SESSION_LIFE_COLUMNS).orderBy(['started_at', 'id'])).map(toEngineSession)
+  const allSessions = await loadSessionUsage(trx, (qb) => qb.whereIn('s.engine_id', engineIds))
   let usage = emptyUsage()
   for (const s of sessionsForComponent(componentId, partInst, allSessions) as typeof allSessions) {
     usage = addSession(usage, s, s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm }, limits, { inspectionClearedAt: iso(comp.inspection_cleared_at) })

@@ -3,7 +3,7 @@
 // instructions, inspection and licensed practice, never a substitute for them.
 
 import type { OverRevBandRule, OverRevEvent } from './over-rev'
-import { equivalentHoursFromMoments, type RpmMoments } from './rpm-moments'
+import { eqCacheKey, equivalentHoursFromMoments, type RpmMoments } from './rpm-moments'
 
 export type { OverRevEvent }
 
@@ -54,6 +54,13 @@ export interface SessionUsage {
    * midpoints, an approximation the session page marks.
    */
   rpmMoments?: RpmMoments | null
+  /**
+   * true when the session has rpm moments (read from a logger file) even if they were not loaded:
+   * its equivalent hours then come from the moments or from eqHoursCache, never from band midpoints
+   */
+  exact?: boolean
+  /** exact equivalent hours by eqCacheKey(exponent, reference rpm), evaluated from the moments */
+  eqHoursCache?: Record<string, number> | null
   /** with the verdict (bandId) decided when the session was read; life counts it as stored */
   overRevs: OverRevEvent[]
 }
@@ -162,11 +169,18 @@ export function equivalentHoursAtBandMidpoints(histogramSeconds: number[], bandW
 
 /** A session's equivalent hours: exact from its rpm moments, else approximate from its histogram. */
 export function sessionEquivalentHours(
-  s: Pick<SessionUsage, 'histogram' | 'rpmMoments' | 'bandWidthRpm'>,
+  s: Pick<SessionUsage, 'sessionId' | 'runningSeconds' | 'histogram' | 'rpmMoments' | 'bandWidthRpm' | 'exact' | 'eqHoursCache'>,
   cfg: Pick<EngineTypeLifeConfig, 'referenceRpm' | 'bandWidthRpm'>,
   exponent: number,
 ): number {
   if (s.rpmMoments) return equivalentHoursFromMoments(s.rpmMoments, cfg.referenceRpm, exponent)
+  if (s.exact) {
+    if (exponent === 0) return s.runningSeconds / SECONDS_PER_HOUR
+    const cached = s.eqHoursCache?.[eqCacheKey(exponent, cfg.referenceRpm)]
+    // an exact session must never fall back to band midpoints silently
+    if (cached === undefined) throw new RangeError(`session ${s.sessionId}: equivalent hours for p = ${exponent} at ${cfg.referenceRpm} rpm were not loaded`)
+    return cached
+  }
   return equivalentHoursAtBandMidpoints(s.histogram, s.bandWidthRpm ?? cfg.bandWidthRpm, cfg.referenceRpm, exponent)
 }
 

@@ -124,6 +124,21 @@ export function equivalentHoursFromMoments(m: RpmMoments, referenceRpm: number, 
   return total / SECONDS_PER_HOUR
 }
 
+/** Key of one (exponent, reference rpm) pair in a session's cache of exact equivalent hours. */
+export function eqCacheKey(exponent: number, referenceRpm: number): string {
+  return `${exponent}@${referenceRpm}`
+}
+
+/**
+ * A session's exact equivalent hours for the pairs in use, evaluated once from its moments, so
+ * that a fleet-wide computation reads a few numbers per session instead of its moments.
+ */
+export function eqCacheOf(m: RpmMoments, referenceRpm: number, exponents: number[]): Record<string, number> {
+  const cache: Record<string, number> = {}
+  for (const p of exponents) cache[eqCacheKey(p, referenceRpm)] = equivalentHoursFromMoments(m, referenceRpm, p)
+  return cache
+}
+
 /** Total running seconds the moments hold. */
 export function momentsSeconds(m: RpmMoments): number {
   let s = 0

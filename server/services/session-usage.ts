@@ -1,0 +1,69 @@
+// Sessions in the life engine's shape for fleet-wide computations. A session's rpm moments are a
+// few kB; a large fleet's would be hundreds of MB, so the computation reads each session's cache of
+// exact equivalent hours for the (exponent, reference rpm) pairs in use instead, and reads moments
+// only for the sessions whose cache lacks a pair (after a new session, a re-processed file, or a
+// change of exponent or reference rpm), writing the filled cache back for the next computation.
+import type { Knex } from 'knex'
+import { eqCacheKey, eqCacheOf } from '#shared/domain/rpm-moments'
+import { json } from '../utils/db'
+import { momentsOf, toEngineSession } from './fleet-data'
+
+type Db = Knex | Knex.Transaction
+export type SessionRow = ReturnType<typeof toEngineSession>
+
+const COLUMNS = ['s.id', 's.engine_id', 's.event_id', 's.started_at', 's.running_seconds', 's.distance_km', 's.histogram', 's.over_revs', 's.band_width_rpm', 's.eq_cache']
+const FILL_CHUNK = 500
+
+/** Sessions matching `where` (on alias s), in time order, each exact session with every pair its engine type needs. */
+export async function loadSessionUsage(db: Db, where: (qb: Knex.QueryBuilder) => void = () => {}): Promise<SessionRow[]> {
+  const qb = db('sessions as s')
+    .join('engines as e', 'e.id', 's.engine_id')
+    .join('engine_types as et', 'et.id', 'e.engine_type_id')
+    .select(COLUMNS)
+    .select(db.raw('(s.rpm_moments IS NOT NULL) AS exact'), 'et.reference_rpm', 'e.supplier_id')
+    .orderBy(['s.started_at', 's.id'])
+  where(qb)
+  const rows = await qb
+  const exponentsBySupplier = new Map<number, number[]>()
+  for (const r of await db('component_types').distinct('supplier_id', 'damage_exponent')) {
+    const p = Number(r.damage_exponent)
+    if (p === 0) continue
+    let list = exponentsBySupplier.get(r.supplier_id)
+    if (!list) exponentsBySupplier.set(r.supplier_id, (list = []))
+    list.push(p)
+  }
+
+  const sessions: SessionRow[] = []
+  const missing: { session: SessionRow; reference: number; exponents: number[] }[] = []
+  for (const r of rows) {
+    const s = toEngineSession(r)
+    s.exact = Boolean(Number(r.exact))
+    s.eqHoursCache = json<Record<string, number> | null>(r.eq_cache, null)
+    sessions.push(s)
+    if (!s.exact) continue
+    const exponents = exponentsBySupplier.get(r.supplier_id) ?? []
+    if (exponents.some((p) => s.eqHoursCache?.[eqCacheKey(p, r.reference_rpm)] === undefined)) missing.push({ session: s, reference: r.reference_rpm, exponents })
+  }
+  if (missing.length) await fillCaches(db, missing)
+  return sessions
+}
+
+async function fillCaches(db: Db, missing: { session: SessionRow; reference: number; exponents: number[] }[]) {
+  for (let i = 0; i < missing.length; i += FILL_CHUNK) {
+    const chunk = missing.slice(i, i + FILL_CHUNK)
+    const blobs = new Map<number, unknown>((await db('sessions').whereIn('id', chunk.map((m) => m.session.sessionId)).select('id', 'rpm_moments')).map((r) => [r.id, r.rpm_moments]))
+    const updates: [number, string][] = []
+    for (const { session, reference, exponents } of chunk) {
+      const moments = momentsOf(blobs.get(session.sessionId))
+      if (!moments) continue // re-processed to nothing meanwhile: the next computation reads it afresh
+      session.eqHoursCache = { ...session.eqHoursCache, ...eqCacheOf(moments, reference, exponents) }
+      updates.push([session.sessionId, JSON.stringify(session.eqHoursCache)])
+    }
+    if (!updates.length) continue
+    // One statement per chunk; a cache written twice by two instances holds the same numbers.
+    await db.raw(
+      `UPDATE sessions SET eq_cache = CASE id ${updates.map(() => 'WHEN ? THEN ?').join(' ')} END WHERE id IN (${updates.map(() => '?').join(',')})`,
+      [...updates.flat(), ...updates.map(([id]) => id)],
+    )
+  }
+}
