@@ -6,10 +6,13 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyzeTrace, type TraceConfig, type TraceSample } from '../../shared/domain/trace'
+import { sessionEquivalentHours } from '../../shared/domain/life'
 import {
   DELTA,
   decodeMoments,
   encodeMoments,
+  eqCacheKey,
+  eqCacheOf,
   equivalentHoursFromMoments,
   histogramEqHoursBounds,
   momentsOfSegments,
@@ -170,5 +173,25 @@ describe('a session entered by hand: band data only, an approximation with state
     expect(b.low).toBeCloseTo(0.454699, 5)
     expect(b.mid).toBeCloseTo(0.678352, 5)
     expect(b.high).toBeCloseTo(1, 12)
+  })
+})
+
+describe('a fleet computation reads cached exact figures, never band midpoints for an exact session', () => {
+  const moments = momentsOfSegments([{ rpm: 8999, seconds: 3600 }])
+  const base = { sessionId: 7, runningSeconds: 3600, histogram: [], rpmMoments: null, exact: true }
+  const cfg = { referenceRpm: 8500, bandWidthRpm: 500 }
+
+  it('takes the cached value of the pair asked for; the cache holds what the moments give, (8999/8500)^13 = 2.0993 by hand', () => {
+    const cache = eqCacheOf(moments, 8500, [13])
+    expect(cache[eqCacheKey(13, 8500)]).toBeCloseTo(2.0993, 4)
+    expect(sessionEquivalentHours({ ...base, eqHoursCache: cache }, cfg, 13)).toBe(cache['13@8500'])
+  })
+
+  it('exponent 0 is the plain running time', () => {
+    expect(sessionEquivalentHours({ ...base, eqHoursCache: {} }, cfg, 0)).toBe(1)
+  })
+
+  it('refuses to answer when the pair was not loaded, instead of falling back to band midpoints', () => {
+    expect(() => sessionEquivalentHours({ ...base, histogram: [0, 3600], eqHoursCache: { '13@8000': 1 } }, cfg, 13)).toThrow(/were not loaded/)
   })
 })
