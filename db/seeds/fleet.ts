@@ -5,57 +5,24 @@ import type { Knex } from 'knex'
 import { engineTypeRow, makeEngineType, makeOverRevBands, rng, tracedSessionRow } from '../fixtures'
 import { syntheticTrace, type PlannedExcursion } from './traces'
 
+// Over-rev bands relative to the rev limit, in the usual steps: logged only, inspect the valve train, teardown.
 export const ENGINE_TYPES = [
-  {
-    ...makeEngineType({
-      code: 'KV8-45',
-      name: 'V8 4.5 l naturally aspirated',
-      series: 'Meridian Endurance GT',
-      cylinders: 8,
-      layout: 'V8, 90 degree, flat-plane crank',
-      boreMm: 94,
-      strokeMm: 81,
-      conrodMm: 140,
-      reciprocatingMassKg: 0.52,
-      revLimitRpm: 9200,
-      idleRpm: 1500,
-      bandWidthRpm: 500,
-      referenceRpm: 8500,
-      // Relative to the rev limit, in the usual steps: logged only, inspect the valve train, teardown.
-      overRevBands: makeOverRevBands([
-        ['A', 9300, 0.2, 'Logged (+1 %)'],
-        ['B', 9500, 0.1, 'Inspect valve train (+3 %)'],
-        ['C', 9900, 0, 'Teardown (+7.6 %)'],
-      ]),
-      lowOilPressure: { belowBar: 2.0, aboveRpm: 4000, minDurationS: 0.5 },
-    }),
-    avgSpeedKmh: 158,
-  },
-  {
-    ...makeEngineType({
-      code: 'KT4-20',
-      name: 'Inline four 2.0 l turbocharged',
-      series: 'Coastline Touring Cup',
-      cylinders: 4,
-      layout: 'Inline four, turbocharged',
-      boreMm: 86,
-      strokeMm: 86,
-      conrodMm: 144,
-      reciprocatingMassKg: 0.61,
-      revLimitRpm: 7600,
-      idleRpm: 1200,
-      bandWidthRpm: 500,
-      referenceRpm: 7000,
-      overRevBands: makeOverRevBands([
-        ['A', 7700, 0.2, 'Logged (+1 %)'],
-        ['B', 7900, 0.1, 'Inspect valve train (+4 %)'],
-        ['C', 8200, 0, 'Teardown (+8 %)'],
-      ]),
-      lowOilPressure: { belowBar: 1.8, aboveRpm: 3500, minDurationS: 0.5 },
-    }),
-    avgSpeedKmh: 132,
-  },
+  makeEngineType({
+    code: 'KV8-45', name: 'V8 4.5 l naturally aspirated', series: 'Meridian Endurance GT', layout: 'V8, 90 degree, flat-plane crank',
+    cylinders: 8, boreMm: 94, strokeMm: 81, conrodMm: 140, reciprocatingMassKg: 0.52,
+    revLimitRpm: 9200, idleRpm: 1500, bandWidthRpm: 500, referenceRpm: 8500,
+    overRevBands: makeOverRevBands([['A', 9300, 0.2, 'Logged (+1 %)'], ['B', 9500, 0.1, 'Inspect valve train (+3 %)'], ['C', 9900, 0, 'Teardown (+7.6 %)']]), lowOilPressure: { belowBar: 2.0, aboveRpm: 4000, minDurationS: 0.5 },
+  }),
+  makeEngineType({
+    code: 'KT4-20', name: 'Inline four 2.0 l turbocharged', series: 'Coastline Touring Cup', layout: 'Inline four, turbocharged',
+    cylinders: 4, boreMm: 86, strokeMm: 86, conrodMm: 144, reciprocatingMassKg: 0.61,
+    revLimitRpm: 7600, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
+    overRevBands: makeOverRevBands([['A', 7700, 0.2, 'Logged (+1 %)'], ['B', 7900, 0.1, 'Inspect valve train (+4 %)'], ['C', 8200, 0, 'Teardown (+8 %)']]), lowOilPressure: { belowBar: 1.8, aboveRpm: 3500, minDurationS: 0.5 },
+  }),
 ]
+
+/** Average speed over a session in each engine type's series (km/h), for the demo sessions' distances. */
+const AVG_SPEED_KMH: Record<string, number> = { 'KV8-45': 158, 'KT4-20': 132 }
 
 interface SeedComponentType {
   code: string
@@ -285,10 +252,10 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           event_id: ev.id,
           kind: s.kind,
           started_at: startedAt,
-          distance_km: Math.round((trace.runningSeconds / 3600) * t.avgSpeedKmh * (0.95 + rand() * 0.1) * 10) / 10,
+          distance_km: Math.round((trace.runningSeconds / 3600) * AVG_SPEED_KMH[t.code]! * (0.95 + rand() * 0.1) * 10) / 10,
           max_oil_temp_c: Math.round((118 + rand() * 14) * 10) / 10,
           max_water_temp_c: Math.round((96 + rand() * 10) * 10) / 10,
-          max_speed_kmh: Math.round((t.avgSpeedKmh * 1.75 + rand() * 15) * 10) / 10,
+          max_speed_kmh: Math.round((AVG_SPEED_KMH[t.code]! * 1.75 + rand() * 15) * 10) / 10,
           min_oil_pressure_bar: Math.round((2.6 + rand() * 0.8) * 100) / 100,
         }))
       }
