@@ -4,9 +4,9 @@
 import autocannon from 'autocannon'
 import knexFactory from 'knex'
 import { knexConfig } from '../db/knexfile'
-import { momentsBlob, rng, ENGINE_TYPES, SYNTHETIC_FILE_NAME } from '../db/seeds/fleet'
+import { rng, tracedSessionRow } from '../db/fixtures'
+import { ENGINE_TYPES } from '../db/seeds/fleet'
 import { syntheticTrace } from '../db/seeds/traces'
-import { eqCacheOf } from '../shared/domain/rpm-moments'
 import { sh, signIn, startServer, startTestDb } from './server'
 
 const ENGINES = Number(process.env.BENCH_ENGINES ?? 500)
@@ -48,22 +48,14 @@ async function seedLargeFleet(url: string) {
       const seconds = 600 + Math.round(rand() * 1800)
       // a few hundred steady steps: as many rpm moments as a real session keeps, far fewer samples
       const trace = syntheticTrace(t, seconds, rand, { stepS: [4, 6] })
-      return {
+      return tracedSessionRow(trace, t, exponents, {
         engine_id: engineId,
         team_id: team.id,
         kind: 'practice',
         started_at: new Date(start + (k + 1) * 3600_000 * 12),
-        running_seconds: Math.round(trace.runningSeconds * 1000) / 1000,
         distance_km: Math.round(seconds * 0.04 * 10) / 10,
-        band_width_rpm: t.band_width_rpm,
-        histogram: JSON.stringify(trace.histogram),
-        rpm_moments: momentsBlob(trace.rpmMoments),
-        eq_cache: JSON.stringify(eqCacheOf(trace.rpmMoments, t.reference_rpm, exponents)),
         over_revs: JSON.stringify(rand() < 0.05 ? [{ bandId: 'A', peakRpm: 9350, durationS: 0.3, startS: 10 }] : []),
-        low_oil_pressure: '[]',
-        source: 'logger',
-        file_name: SYNTHETIC_FILE_NAME,
-      }
+      })
     })
     for (const b of batch(sessions, 500)) await knex('sessions').insert(b)
     if ((e + 1) % 100 === 0) console.log(`  seeded ${e + 1} engines`)

@@ -7,7 +7,7 @@ import { Readable } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
 import type { LoggerMapping } from '../shared/domain/logger-mapping'
 import type { TraceConfig } from '../shared/domain/trace'
-import { rng } from '../db/seeds/fleet'
+import { makeOverRevBands, makeTraceConfig, rng } from '../db/fixtures'
 
 export interface TraceCsvOptions {
   hz: number
@@ -52,19 +52,13 @@ export function traceCsvMapping(opts: Pick<TraceCsvOptions, 'delimiter' | 'decim
 }
 
 // The engine type the synthetic files are analysed with: invented over-rev bands (levels as in common practice: log, inspect, teardown).
-export const BENCH_TRACE_CONFIG: TraceConfig = {
+export const BENCH_TRACE_CONFIG: TraceConfig = makeTraceConfig({
   idleRpm: 2500,
   bandWidthRpm: 250,
   maxGapS: 0.5,
-  overRevBands: [
-    { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 100 },
-    { id: 'inspect', label: 'Inspect valve train', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
-    { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 100 },
-  ],
+  overRevBands: makeOverRevBands([['log', 9000, 0.1], ['inspect', 9300, 0.05], ['teardown', 9600, 0]]),
   lowOilPressure: { belowBar: 2.5, aboveRpm: 4000, minDurationS: 0.2 },
-  trackLengthKm: null,
-  laps: null,
-}
+})
 
 // Invented circuit: segment length (m) and corner radius (m, 0 = straight).
 const CIRCUIT: [number, number][] = [

@@ -2,88 +2,27 @@
 // thirteen engines spread from fresh to due, past sessions with rev histograms, and a calendar
 // with a 12-hour race still to come. Every name here is invented.
 import type { Knex } from 'knex'
-import { encodeMoments, eqCacheOf, type RpmMoments } from '../../shared/domain/rpm-moments'
-import type { TraceSummary } from '../../shared/domain/trace'
+import { engineTypeRow, makeEngineType, makeOverRevBands, rng, tracedSessionRow } from '../fixtures'
 import { syntheticTrace, type PlannedExcursion } from './traces'
 
-/** Small deterministic PRNG (mulberry32), so every run writes the same demo and bench data. */
-export function rng(seed: number) {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-export interface SeedEngineType {
-  code: string
-  name: string
-  series: string
-  cylinders: number
-  layout: string
-  bore_mm: number
-  stroke_mm: number
-  conrod_mm: number
-  reciprocating_mass_kg: number
-  rev_limit_rpm: number
-  idle_rpm: number
-  band_width_rpm: number
-  reference_rpm: number
-  over_rev_bands: { id: string; label: string; minRpm: number; minDurationS: number; hysteresisRpm: number }[]
-  low_oil_pressure: { belowBar: number; aboveRpm: number; minDurationS: number }
-  avgSpeedKmh: number
-}
-
-export const ENGINE_TYPES: SeedEngineType[] = [
-  {
-    code: 'KV8-45',
-    name: 'V8 4.5 l naturally aspirated',
-    series: 'Meridian Endurance GT',
-    cylinders: 8,
-    layout: 'V8, 90 degree, flat-plane crank',
-    bore_mm: 94,
-    stroke_mm: 81,
-    conrod_mm: 140,
-    reciprocating_mass_kg: 0.52,
-    rev_limit_rpm: 9200,
-    idle_rpm: 1500,
-    band_width_rpm: 500,
-    reference_rpm: 8500,
-    // Relative to the rev limit, in the usual steps: logged only, inspect the valve train, teardown.
-    over_rev_bands: [
-      { id: 'A', label: 'Logged (+1 %)', minRpm: 9300, minDurationS: 0.2, hysteresisRpm: 100 },
-      { id: 'B', label: 'Inspect valve train (+3 %)', minRpm: 9500, minDurationS: 0.1, hysteresisRpm: 100 },
-      { id: 'C', label: 'Teardown (+7.6 %)', minRpm: 9900, minDurationS: 0, hysteresisRpm: 100 },
-    ],
-    low_oil_pressure: { belowBar: 2.0, aboveRpm: 4000, minDurationS: 0.5 },
-    avgSpeedKmh: 158,
-  },
-  {
-    code: 'KT4-20',
-    name: 'Inline four 2.0 l turbocharged',
-    series: 'Coastline Touring Cup',
-    cylinders: 4,
-    layout: 'Inline four, turbocharged',
-    bore_mm: 86,
-    stroke_mm: 86,
-    conrod_mm: 144,
-    reciprocating_mass_kg: 0.61,
-    rev_limit_rpm: 7600,
-    idle_rpm: 1200,
-    band_width_rpm: 500,
-    reference_rpm: 7000,
-    over_rev_bands: [
-      { id: 'A', label: 'Logged (+1 %)', minRpm: 7700, minDurationS: 0.2, hysteresisRpm: 100 },
-      { id: 'B', label: 'Inspect valve train (+4 %)', minRpm: 7900, minDurationS: 0.1, hysteresisRpm: 100 },
-      { id: 'C', label: 'Teardown (+8 %)', minRpm: 8200, minDurationS: 0, hysteresisRpm: 100 },
-    ],
-    low_oil_pressure: { belowBar: 1.8, aboveRpm: 3500, minDurationS: 0.5 },
-    avgSpeedKmh: 132,
-  },
+// Over-rev bands relative to the rev limit, in the usual steps: logged only, inspect the valve train, teardown.
+export const ENGINE_TYPES = [
+  makeEngineType({
+    code: 'KV8-45', name: 'V8 4.5 l naturally aspirated', series: 'Meridian Endurance GT', layout: 'V8, 90 degree, flat-plane crank',
+    cylinders: 8, boreMm: 94, strokeMm: 81, conrodMm: 140, reciprocatingMassKg: 0.52,
+    revLimitRpm: 9200, idleRpm: 1500, bandWidthRpm: 500, referenceRpm: 8500,
+    overRevBands: makeOverRevBands([['A', 9300, 0.2, 'Logged (+1 %)'], ['B', 9500, 0.1, 'Inspect valve train (+3 %)'], ['C', 9900, 0, 'Teardown (+7.6 %)']]), lowOilPressure: { belowBar: 2.0, aboveRpm: 4000, minDurationS: 0.5 },
+  }),
+  makeEngineType({
+    code: 'KT4-20', name: 'Inline four 2.0 l turbocharged', series: 'Coastline Touring Cup', layout: 'Inline four, turbocharged',
+    cylinders: 4, boreMm: 86, strokeMm: 86, conrodMm: 144, reciprocatingMassKg: 0.61,
+    revLimitRpm: 7600, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
+    overRevBands: makeOverRevBands([['A', 7700, 0.2, 'Logged (+1 %)'], ['B', 7900, 0.1, 'Inspect valve train (+4 %)'], ['C', 8200, 0, 'Teardown (+8 %)']]), lowOilPressure: { belowBar: 1.8, aboveRpm: 3500, minDurationS: 0.5 },
+  }),
 ]
+
+/** Average speed over a session in each engine type's series (km/h), for the demo sessions' distances. */
+const AVG_SPEED_KMH: Record<string, number> = { 'KV8-45': 158, 'KT4-20': 132 }
 
 interface SeedComponentType {
   code: string
@@ -147,26 +86,8 @@ function positionsFor(code: string, cylinders: number) {
 }
 
 const DAY = 86_400_000
-/** Demo sessions come from invented traces read by the trace analyzer; no raw file is kept for them. */
-export const SYNTHETIC_FILE_NAME = 'invented demo trace (raw file not kept)'
-const round3 = (x: number) => Math.round(x * 1000) / 1000
-
-/** What the session page draws from: the trace overview, as a logger import keeps it. */
-function traceDetails(trace: TraceSummary) {
-  return JSON.stringify({ overview: trace.overview, durationS: trace.durationS, distanceSource: 'none', rows: trace.samples, skippedRows: 0, warnings: [], gaps: [], gapCount: 0 })
-}
-
 /** The supplier's damage exponents in use (all its part types), as the fleet computation asks for them. */
 const DEMO_EXPONENTS = [...new Set(Object.values(COMPONENT_TYPES).flat().map((c) => c.damage_exponent))].filter((p) => p !== 0)
-
-function eqCacheJson(trace: TraceSummary, referenceRpm: number) {
-  return JSON.stringify(eqCacheOf(trace.rpmMoments, referenceRpm, DEMO_EXPONENTS))
-}
-
-export function momentsBlob(m: RpmMoments): Buffer {
-  const bytes = encodeMoments(m)
-  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)
-}
 
 export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number; teams: Record<string, number>; now: Date }) {
   const rand = rng(20261202)
@@ -176,8 +97,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
   const positions: Record<string, ReturnType<typeof positionsFor>> = {}
 
   for (const t of ENGINE_TYPES) {
-    const { avgSpeedKmh: _speed, ...row } = t
-    const [id] = await trx('engine_types').insert({ ...row, supplier_id: ctx.supplierId, over_rev_bands: JSON.stringify(t.over_rev_bands), low_oil_pressure: JSON.stringify(t.low_oil_pressure) })
+    const [id] = await trx('engine_types').insert({ ...engineTypeRow(t), supplier_id: ctx.supplierId })
     typeIds[t.code] = id!
     for (const ct of COMPONENT_TYPES[t.code]!) {
       const [cid] = await trx('component_types').insert({ ...ct, supplier_id: ctx.supplierId, limit_over_rev: JSON.stringify(ct.limit_over_rev), characteristics: JSON.stringify(ct.characteristics) })
@@ -317,41 +237,29 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
         const s = kinds[k]!
         const seconds = Math.round(s.hours * 3600 * (0.9 + rand() * 0.2))
         const excursions: PlannedExcursion[] = []
-        if (rand() < 0.25) excursions.push({ at: rand() * 0.95, peakRpm: t.over_rev_bands[0]!.minRpm + 60, holdS: 0.4 })
+        if (rand() < 0.25) excursions.push({ at: rand() * 0.95, peakRpm: t.overRevBands[0]!.minRpm + 60, holdS: 0.4 })
         if (f.overRevC && round === 7 && s.kind === 'race') {
           // A missed downshift in the last race: straight into the teardown band.
-          excursions.push({ at: 0.62, peakRpm: t.over_rev_bands[2]!.minRpm + 180, holdS: 0.35 })
+          excursions.push({ at: 0.62, peakRpm: t.overRevBands[2]!.minRpm + 180, holdS: 0.35 })
         }
         if (f.serial === 'KT4-2101' && round === 7 && s.kind === 'qualifying') {
           // A flick past the inspection threshold inside a longer logged excursion: one event, logged.
-          excursions.push({ at: 0.5, peakRpm: t.over_rev_bands[0]!.minRpm + 40, holdS: 0.6, spike: { rpm: t.over_rev_bands[1]!.minRpm + 60, seconds: 0.05 } })
+          excursions.push({ at: 0.5, peakRpm: t.overRevBands[0]!.minRpm + 40, holdS: 0.6, spike: { rpm: t.overRevBands[1]!.minRpm + 60, seconds: 0.05 } })
         }
         const trace = syntheticTrace(t, seconds, rand, { intensity: s.kind === 'qualifying' ? 1.4 : 1, excursions })
-        const overRevs = trace.overRevs
         const startedAt = new Date(ev.startsAt + s.day * DAY + (k % 2) * 4 * 3600_000)
-        await trx('sessions').insert({
+        await trx('sessions').insert(tracedSessionRow(trace, t, DEMO_EXPONENTS, {
           engine_id: engineId,
           team_id: f.team ? team[f.team] : null,
           event_id: ev.id,
           kind: s.kind,
           started_at: startedAt,
-          running_seconds: round3(trace.runningSeconds),
-          distance_km: Math.round((trace.runningSeconds / 3600) * t.avgSpeedKmh * (0.95 + rand() * 0.1) * 10) / 10,
-          band_width_rpm: t.band_width_rpm,
-          histogram: JSON.stringify(trace.histogram),
-          rpm_moments: momentsBlob(trace.rpmMoments),
-          eq_cache: eqCacheJson(trace, t.reference_rpm),
-          over_revs: JSON.stringify(overRevs),
-          low_oil_pressure: JSON.stringify([]),
-          max_rpm: Math.round(trace.maxRpm),
+          distance_km: Math.round((trace.runningSeconds / 3600) * AVG_SPEED_KMH[t.code]! * (0.95 + rand() * 0.1) * 10) / 10,
           max_oil_temp_c: Math.round((118 + rand() * 14) * 10) / 10,
           max_water_temp_c: Math.round((96 + rand() * 10) * 10) / 10,
-          max_speed_kmh: Math.round((t.avgSpeedKmh * 1.75 + rand() * 15) * 10) / 10,
+          max_speed_kmh: Math.round((AVG_SPEED_KMH[t.code]! * 1.75 + rand() * 15) * 10) / 10,
           min_oil_pressure_bar: Math.round((2.6 + rand() * 0.8) * 100) / 100,
-          source: 'logger',
-          file_name: SYNTHETIC_FILE_NAME,
-          details: traceDetails(trace),
-        })
+        }))
       }
     }
   }
@@ -377,25 +285,14 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
     const t = ENGINE_TYPES[0]!
     for (const [d, hours] of [[-40, 6], [-25, 7]] as const) {
       const trace = syntheticTrace(t, hours * 3600, rand, { intensity: 1.2 })
-      await trx('sessions').insert({
+      await trx('sessions').insert(tracedSessionRow(trace, t, DEMO_EXPONENTS, {
         engine_id: kv1001,
         team_id: null,
         event_id: null,
         kind: 'bench',
         started_at: new Date(swapAt.getTime() + d * DAY),
-        running_seconds: round3(trace.runningSeconds),
         distance_km: 0,
-        band_width_rpm: t.band_width_rpm,
-        histogram: JSON.stringify(trace.histogram),
-        rpm_moments: momentsBlob(trace.rpmMoments),
-        eq_cache: eqCacheJson(trace, t.reference_rpm),
-        over_revs: JSON.stringify(trace.overRevs),
-        low_oil_pressure: JSON.stringify([]),
-        max_rpm: Math.round(trace.maxRpm),
-        source: 'logger',
-        file_name: SYNTHETIC_FILE_NAME,
-        details: traceDetails(trace),
-      })
+      }))
     }
   }
 

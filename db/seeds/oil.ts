@@ -6,8 +6,8 @@
 import type { Knex } from 'knex'
 import { DEFAULT_OIL_LIMITS, type NewOilReference, type OilElement, type OilLimits, type OilSampleValues } from '#shared/domain/oil/limits'
 import { oilSampleSchema } from '#shared/domain/oil/schema'
-import { insertSamples } from '../../server/services/oil-rows'
-import { rng } from './fleet'
+import { insertSamples } from '../oil-samples'
+import { rng } from '../fixtures'
 
 const DAY = 86_400_000
 const LABS = { KV8: 'Quillmere Fluid Laboratory', KT4: 'Tallowfield Oil Lab' } as const

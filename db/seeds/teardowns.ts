@@ -3,8 +3,8 @@
 // reports and the fleet findings have something to show. Rates and findings are invented.
 import type { Knex } from 'knex'
 import { judge, type Characteristic } from '../../shared/domain/teardown'
-import { json } from '../../server/utils/db'
-import { rng } from './fleet'
+import { json } from '../values'
+import { rng } from '../fixtures'
 
 const DAY = 86_400_000
 

@@ -3,13 +3,9 @@
 // logger file. So demo sessions carry exact equivalent hours and over-rev verdicts, not
 // hand-filled histograms.
 import { createTraceAnalyzer, createTraceBlock, type TraceSummary } from '../../shared/domain/trace'
+import { LOW_OIL_CHECK_OFF, makeTraceConfig, type EngineTypeFixture } from '../fixtures'
 
-export interface TraceEngineType {
-  rev_limit_rpm: number
-  idle_rpm: number
-  band_width_rpm: number
-  over_rev_bands: { id: string; label: string; minRpm: number; minDurationS: number; hysteresisRpm: number }[]
-}
+export type TraceEngineType = Pick<EngineTypeFixture, 'revLimitRpm' | 'idleRpm' | 'bandWidthRpm' | 'overRevBands'>
 
 export interface PlannedExcursion {
   /** fraction of the session at which it happens */
@@ -23,13 +19,13 @@ export interface PlannedExcursion {
 
 /** Where the running time sits: mostly high in the range, some part throttle, none below idle. */
 function rpmSampler(t: TraceEngineType, rand: () => number, intensity: number) {
-  const bands = Math.ceil((t.rev_limit_rpm + 1000) / t.band_width_rpm)
-  const peak = t.rev_limit_rpm * (0.8 + 0.06 * intensity + rand() * 0.02)
-  const sigma = t.rev_limit_rpm * 0.11
+  const bands = Math.ceil((t.revLimitRpm + 1000) / t.bandWidthRpm)
+  const peak = t.revLimitRpm * (0.8 + 0.06 * intensity + rand() * 0.02)
+  const sigma = t.revLimitRpm * 0.11
   const weights: number[] = []
   for (let i = 0; i < bands; i++) {
-    const mid = (i + 0.5) * t.band_width_rpm
-    if (mid < t.idle_rpm || mid > t.rev_limit_rpm + t.band_width_rpm / 2) weights.push(0)
+    const mid = (i + 0.5) * t.bandWidthRpm
+    if (mid < t.idleRpm || mid > t.revLimitRpm + t.bandWidthRpm / 2) weights.push(0)
     else weights.push(Math.exp(-(((mid - peak) / sigma) ** 2)) + 0.04)
   }
   const total = weights.reduce((a, b) => a + b, 0)
@@ -37,9 +33,9 @@ function rpmSampler(t: TraceEngineType, rand: () => number, intensity: number) {
     let r = rand() * total
     let i = 0
     while (i < weights.length - 1 && r >= weights[i]!) r -= weights[i++]!
-    const rpm = (i + rand()) * t.band_width_rpm
+    const rpm = (i + rand()) * t.bandWidthRpm
     // the limiter holds the engine at its rev limit; above it only the planned excursions go
-    return Math.min(Math.max(rpm, t.idle_rpm + 1), t.rev_limit_rpm)
+    return Math.min(Math.max(rpm, t.idleRpm + 1), t.revLimitRpm)
   }
 }
 
@@ -55,15 +51,9 @@ export function syntheticTrace(
   opts: { intensity?: number; excursions?: PlannedExcursion[]; stepS?: [min: number, max: number] } = {},
 ): TraceSummary {
   const [stepMin, stepMax] = opts.stepS ?? [0.5, 1]
-  const analyzer = createTraceAnalyzer({
-    idleRpm: t.idle_rpm,
-    bandWidthRpm: t.band_width_rpm,
-    maxGapS: stepMax,
-    overRevBands: t.over_rev_bands,
-    lowOilPressure: { belowBar: 0, aboveRpm: 0, minDurationS: 1 },
-    trackLengthKm: null,
-    laps: null,
-  })
+  const analyzer = createTraceAnalyzer(
+    makeTraceConfig({ idleRpm: t.idleRpm, bandWidthRpm: t.bandWidthRpm, maxGapS: stepMax, overRevBands: t.overRevBands, lowOilPressure: LOW_OIL_CHECK_OFF }),
+  )
   const next = rpmSampler(t, rand, opts.intensity ?? 1)
   const excursions = [...(opts.excursions ?? [])].sort((a, b) => a.at - b.at)
   const block = createTraceBlock(4096)
@@ -86,7 +76,7 @@ export function syntheticTrace(
     const ex = excursions[e]
     if (ex && time >= ex.at * seconds) {
       e++
-      const from = t.rev_limit_rpm - 50
+      const from = t.revLimitRpm - 50
       push(time, from)
       for (let k = 1; k <= 2; k++) push((time += 0.05), from + ((ex.peakRpm - from) * k) / 2)
       const spikeFrom = ex.spike ? (ex.holdS - ex.spike.seconds) / 2 : Infinity
@@ -95,14 +85,14 @@ export function syntheticTrace(
         const inSpike = held >= spikeFrom - 1e-9 && held < spikeTo - 1e-9
         push((time += 0.05), inSpike ? ex.spike!.rpm : ex.peakRpm)
       }
-      push((time += 0.05), t.rev_limit_rpm - 400)
+      push((time += 0.05), t.revLimitRpm - 400)
       time += 0.05
       continue
     }
     push(time, next())
     time += stepMin + rand() * (stepMax - stepMin)
   }
-  push(time, t.idle_rpm) // the last sample closes the last step
+  push(time, t.idleRpm) // the last sample closes the last step
   if (n > 0) analyzer.pushBlock(block, n)
   return analyzer.finish()
 }

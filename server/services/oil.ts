@@ -22,7 +22,7 @@ import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
 import { engineRowFor } from './fleet-scope'
 import { bumpLifeRevision } from './fleet-data'
-import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from './oil-rows'
+import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from '../../db/oil-samples'
 
 type Db = Knex | Knex.Transaction
 

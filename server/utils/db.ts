@@ -37,29 +37,8 @@ export async function closeDb() {
   }
 }
 
-/** MariaDB DECIMAL arrives as a string: convert at the repository boundary. */
-export function num(v: unknown): number {
-  return v === null || v === undefined ? 0 : Number(v)
-}
-export function numOrNull(v: unknown): number | null {
-  return v === null || v === undefined ? null : Number(v)
-}
-export function json<T>(v: unknown, fallback: T): T {
-  if (v === null || v === undefined) return fallback
-  // mysql2 may hand JSON columns over parsed already; a parsed JSON string stays a string.
-  if (typeof v === 'string') {
-    try {
-      return JSON.parse(v) as T
-    } catch {
-      return v as T
-    }
-  }
-  return v as T
-}
-export function iso(v: unknown): string | null {
-  if (v === null || v === undefined) return null
-  return (v instanceof Date ? v : new Date(String(v))).toISOString()
-}
+// Row value conversions live in db/ so the seeds use the same ones.
+export { iso, json, num, numOrNull } from '../../db/values'
 
 const DB_DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'PROTOCOL_CONNECTION_LOST', 'ER_CON_COUNT_ERROR', 'ER_SERVER_SHUTDOWN', 'PROTOCOL_SEQUENCE_TIMEOUT'])
 

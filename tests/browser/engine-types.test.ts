@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { launch, screenshot, signedInPage, TABLET } from './browser'
+import { makeEngineType } from '../../db/fixtures'
 import { db, signIn, USERS } from '../e2e/helpers'
 
 let browser: Browser
@@ -41,10 +42,7 @@ describe('engine type sheet in Chromium: reciprocating inertia force', () => {
     const rod = await db()('component_types').where('code', 'KV8-ROD').first('id')
     const code = `TST-SHEET-${Date.now().toString(36).toUpperCase()}`
     const created = await supplier.post('/api/engine-types', {
-      code, name: 'Sheet test four', series: 'Test series', cylinders: 4, layout: 'I4', boreMm: 90, strokeMm: 90, conrodMm: 145, reciprocatingMassKg: null,
-      revLimitRpm: 7500, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
-      overRevBands: [{ id: 'A', label: 'Logged', minRpm: 7700, minDurationS: 0.2, hysteresisRpm: 100 }],
-      lowOilPressure: { belowBar: 2, aboveRpm: 4000, minDurationS: 0.5 },
+      ...makeEngineType({ code, name: 'Sheet test four', cylinders: 4, layout: 'I4', strokeMm: 90, conrodMm: 145, revLimitRpm: 7500, reciprocatingMassKg: null }),
       positions: [{ position: 'rod-1', label: 'Conrod 1', componentTypeId: rod.id }],
     })
     expect(created.status).toBe(201)

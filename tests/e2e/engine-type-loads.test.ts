@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest'
+import { makeEngineType, makeOverRevBands } from '../../db/fixtures'
 import { db, signIn, USERS, type Client } from './helpers'
 
 // The reciprocating mass of an engine type and the inertia forces the API derives from it.
@@ -20,13 +21,11 @@ beforeAll(async () => {
   const rod = await db()('component_types').where('code', 'KV8-ROD').first('id')
   // The slider-crank worked case: stroke 90 mm, conrod 145 mm, 7,500 rpm, 0.5 kg (invented engine type).
   const res = await supplier.post('/api/engine-types', {
-    code, name: 'Test loads V6', series: 'Test series', cylinders: 6, layout: 'V6', boreMm: 90, strokeMm: 90, conrodMm: 145, reciprocatingMassKg: 0.5,
-    revLimitRpm: 7500, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
-    overRevBands: [
-      { id: 'B', label: 'Inspect valve train', minRpm: 8000, minDurationS: 0.1, hysteresisRpm: 100 },
-      { id: 'A', label: 'Logged', minRpm: 7700, minDurationS: 0.2, hysteresisRpm: 100 },
-    ],
-    lowOilPressure: { belowBar: 2, aboveRpm: 4000, minDurationS: 0.5 },
+    ...makeEngineType({
+      code, name: 'Test loads V6', cylinders: 6, strokeMm: 90, conrodMm: 145, reciprocatingMassKg: 0.5, revLimitRpm: 7500,
+      // listed out of threshold order: the sheet sorts them
+      overRevBands: makeOverRevBands([['B', 8000, 0.1, 'Inspect valve train'], ['A', 7700, 0.2, 'Logged']]),
+    }),
     positions: [1, 2, 3, 4, 5, 6].map((i) => ({ position: `rod-${i}`, label: `Conrod ${i}`, componentTypeId: rod.id })),
   })
   expect(res.status).toBe(201)

@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest'
+import { makeEngineType, makeOverRevBands } from '../../db/fixtures'
 import { db, signIn, USERS, type Client } from './helpers'
 
 let supplier: Client
@@ -253,10 +254,7 @@ describe('engine and component types', () => {
     expect(ct.status).toBe(201)
     expect(ct.body).toMatchObject({ code: 'TST-ROD', limitHours: 50, warningLevel: 0.8, dueLevel: 0.9 })
     const et = await supplier.post('/api/engine-types', {
-      code: 'TST-V6', name: 'Test V6', series: 'Test series', cylinders: 6, layout: 'V6', boreMm: 90, strokeMm: 90, conrodMm: 145, reciprocatingMassKg: 0.5,
-      revLimitRpm: 7500, idleRpm: 1200, bandWidthRpm: 500, referenceRpm: 7000,
-      overRevBands: [{ id: 'A', label: 'Logged', minRpm: 7600, minDurationS: 0.2, hysteresisRpm: 100 }],
-      lowOilPressure: { belowBar: 2, aboveRpm: 4000, minDurationS: 0.5 },
+      ...makeEngineType({ code: 'TST-V6', cylinders: 6, strokeMm: 90, conrodMm: 145, revLimitRpm: 7500, overRevBands: makeOverRevBands([['A', 7600, 0.2, 'Logged']]) }),
       positions: [1, 2, 3, 4, 5, 6].map((i) => ({ position: `rod-${i}`, label: `Conrod ${i}`, componentTypeId: ct.body.id })),
     })
     expect(et.status).toBe(201)
@@ -269,8 +267,8 @@ describe('engine and component types', () => {
 
   it('refuses a bad engine type naming the field, a duplicate code, and a team role', async () => {
     const bad = await supplier.post('/api/engine-types', {
-      code: 'TST-BAD', name: 'Bad', series: 'S', cylinders: 4, layout: 'I4', boreMm: 86, strokeMm: 86, conrodMm: 40, revLimitRpm: 7000, idleRpm: 1000, bandWidthRpm: 500, referenceRpm: 6500,
-      overRevBands: [{ id: 'A', label: 'A', minRpm: 7100, minDurationS: 0, hysteresisRpm: 50 }], lowOilPressure: { belowBar: 2, aboveRpm: 3000, minDurationS: 0.5 }, positions: [{ position: 'crank', label: 'Crank', componentTypeId: 1 }],
+      ...makeEngineType({ code: 'TST-BAD', strokeMm: 86, conrodMm: 40 }),
+      positions: [{ position: 'crank', label: 'Crank', componentTypeId: 1 }],
     })
     expect(bad.status).toBe(400)
     expect(bad.body.message).toMatch(/conrodMm: must be longer than the crank radius/)

@@ -11,56 +11,21 @@ import {
 } from '../../shared/domain/forecast'
 import {
   emptyUsage,
-  type ComponentLimits,
   type EngineTypeLifeConfig,
   type OverRevEvent,
   type PartUsage,
-  type SessionUsage,
 } from '../../shared/domain/life'
 import { momentsOfSegments } from '../../shared/domain/rpm-moments'
+import { makeLifeConfig, makeLimits, makeOverRevBands, makeSession } from '../../db/fixtures'
 
+// Invented engine type: 1,000 rpm bands, reference 8,000 rpm, a logged and a teardown band.
 function makeCfg(overrides: Partial<EngineTypeLifeConfig> = {}): EngineTypeLifeConfig {
-  return {
-    referenceRpm: 8000,
-    revLimitRpm: 8500,
-    bandWidthRpm: 1000,
-    overRevBands: [
-      { id: 'log', label: 'logged', minRpm: 8600, minDurationS: 0.2, hysteresisRpm: 100 },
-      { id: 'strip', label: 'teardown', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
-    ],
-    ...overrides,
-  }
-}
-
-function makeLimits(overrides: Partial<ComponentLimits> = {}): ComponentLimits {
-  return {
-    hours: 10,
-    km: null,
-    eqHours: null,
-    overRevEvents: {},
-    immediateInspectionBand: null,
-    warningLevel: 0.8,
-    dueLevel: 0.9,
-    damageExponent: 0,
-    ...overrides,
-  }
+  const overRevBands = makeOverRevBands([['log', 8600, 0.2, 'logged'], ['strip', 9300, 0.05, 'teardown']])
+  return makeLifeConfig({ referenceRpm: 8000, revLimitRpm: 8500, bandWidthRpm: 1000, overRevBands, ...overrides })
 }
 
 function makeUsage(overrides: Partial<PartUsage> = {}): PartUsage {
   return { ...emptyUsage(), ...overrides }
-}
-
-let nextSessionId = 1
-function makeSession(overrides: Partial<SessionUsage> = {}): SessionUsage {
-  return {
-    sessionId: nextSessionId++,
-    at: '2031-07-01T10:00:00Z',
-    runningSeconds: 3600,
-    distanceKm: 100,
-    histogram: [],
-    overRevs: [],
-    ...overrides,
-  }
 }
 
 function makeOverRev(peakRpm: number, overrides: Partial<OverRevEvent> = {}): OverRevEvent {

@@ -12,20 +12,18 @@ import { makeTraceCsv, traceCsvMapping, TRACE_CSV_HEADER } from '../../bench/mak
 import { LoggerImportError, analyzeLoggerStream, type LoggerImportOptions } from '../../server/services/logger-csv'
 import type { LoggerMapping } from '../../shared/domain/logger-mapping'
 import { TRACE_MAX_RPM, type TraceConfig } from '../../shared/domain/trace'
+import { makeOverRevBands, makeTraceConfig } from '../../db/fixtures'
 
-const CFG: TraceConfig = {
+const CFG: TraceConfig = makeTraceConfig({
   idleRpm: 2500,
   bandWidthRpm: 250,
   maxGapS: 0.5,
   // invented demo levels
-  overRevBands: [
-    { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 100 },
-    { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 100 },
-  ],
+  overRevBands: makeOverRevBands([['log', 9000, 0.1], ['teardown', 9600, 0]]),
   lowOilPressure: { belowBar: 2.5, aboveRpm: 4000, minDurationS: 0.2 },
   trackLengthKm: 4.4,
   laps: 3,
-}
+})
 const MAPPING = traceCsvMapping()
 const RUNS = Number(process.env.FUZZ_RUNS ?? 150)
 

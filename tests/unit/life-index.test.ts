@@ -1,22 +1,14 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { accumulateUsage, type ComponentLimits, type EngineTypeLifeConfig, type SessionUsage } from '../../shared/domain/life'
+import { accumulateUsage, type ComponentLimits, type SessionUsage } from '../../shared/domain/life'
 import { createUsageIndex } from '../../shared/domain/life-index'
 import { momentsOfSegments } from '../../shared/domain/rpm-moments'
+import { makeLifeConfig, makeLimits as makeBaseLimits, makeOverRevBands } from '../../db/fixtures'
 
 // The prefix-sum index is an optimisation: it must give accumulateUsage's answer for every window.
-const cfg: EngineTypeLifeConfig = {
-  referenceRpm: 8000,
-  revLimitRpm: 8800,
-  bandWidthRpm: 500,
-  overRevBands: [
-    { id: 'A', label: 'A', minRpm: 8500, minDurationS: 0.1, hysteresisRpm: 50 },
-    { id: 'B', label: 'B', minRpm: 9000, minDurationS: 0, hysteresisRpm: 50 },
-  ],
-}
-const makeLimits = (over: Partial<ComponentLimits> = {}): ComponentLimits => ({
-  hours: 50, km: 5000, eqHours: 40, overRevEvents: { A: 10, B: 1 }, immediateInspectionBand: 'B', warningLevel: 0.8, dueLevel: 0.9, damageExponent: 13, ...over,
-})
+const cfg = makeLifeConfig({ referenceRpm: 8000, revLimitRpm: 8800, bandWidthRpm: 500, overRevBands: makeOverRevBands([['A', 8500, 0.1], ['B', 9000, 0]], { hysteresisRpm: 50 }) })
+const makeLimits = (over: Partial<ComponentLimits> = {}): ComponentLimits =>
+  makeBaseLimits({ hours: 50, km: 5000, eqHours: 40, overRevEvents: { A: 10, B: 1 }, immediateInspectionBand: 'B', damageExponent: 13, ...over })
 
 const sessionArb = fc.record({
   runningSeconds: fc.integer({ min: 0, max: 20_000 }),

@@ -17,54 +17,18 @@ import {
   sessionsForComponent,
   statusFor,
   worstStatus,
-  type ComponentLimits,
   type EngineSession,
   type EngineTypeLifeConfig,
   type Installation,
   type OverRevEvent,
   type SessionUsage,
 } from '../../shared/domain/life'
+import { makeLifeConfig, makeLimits, makeOverRevBands, makeSession } from '../../db/fixtures'
 
 // Invented engine type: 1,000 rpm bands, reference 8,000 rpm, three over-rev bands.
 function makeCfg(overrides: Partial<EngineTypeLifeConfig> = {}): EngineTypeLifeConfig {
-  return {
-    referenceRpm: 8000,
-    revLimitRpm: 8500,
-    bandWidthRpm: 1000,
-    overRevBands: [
-      { id: 'log', label: 'logged', minRpm: 8600, minDurationS: 0.2, hysteresisRpm: 100 },
-      { id: 'valve', label: 'valve train check', minRpm: 8900, minDurationS: 0.1, hysteresisRpm: 100 },
-      { id: 'strip', label: 'teardown', minRpm: 9300, minDurationS: 0.05, hysteresisRpm: 100 },
-    ],
-    ...overrides,
-  }
-}
-
-function makeLimits(overrides: Partial<ComponentLimits> = {}): ComponentLimits {
-  return {
-    hours: 20,
-    km: null,
-    eqHours: null,
-    overRevEvents: {},
-    immediateInspectionBand: null,
-    warningLevel: 0.8,
-    dueLevel: 0.9,
-    damageExponent: 0,
-    ...overrides,
-  }
-}
-
-let nextSessionId = 1
-function makeSession(overrides: Partial<SessionUsage> = {}): SessionUsage {
-  return {
-    sessionId: nextSessionId++,
-    at: '2031-05-10T10:00:00Z',
-    runningSeconds: 3600,
-    distanceKm: 150,
-    histogram: [],
-    overRevs: [],
-    ...overrides,
-  }
+  const overRevBands = makeOverRevBands([['log', 8600, 0.2, 'logged'], ['valve', 8900, 0.1, 'valve train check'], ['strip', 9300, 0.05, 'teardown']])
+  return makeLifeConfig({ referenceRpm: 8000, revLimitRpm: 8500, bandWidthRpm: 1000, overRevBands, ...overrides })
 }
 
 function makeEngineSession(engineId: number, overrides: Partial<SessionUsage> = {}): EngineSession {

@@ -172,7 +172,7 @@ describe('papaparse path against csv-parse (independent parser)', () => {
     expect(ref.overRevs.length).toBeGreaterThan(0)
     expect(ref.lowOilPressure.length).toBeGreaterThan(0)
     expect(ref.runningSeconds).toBeGreaterThan(1000)
-  })
+  }, 60_000) // 120,000 rows through two parsers: seconds on a busy machine
 
   it('a decimal-comma file with ";" gives the same figures as the decimal-point file', async () => {
     const point = await streamToBuffer(makeTraceCsv({ hz: 50, seconds: 600 }))

@@ -18,16 +18,9 @@ import {
   momentsOfSegments,
   momentsRelativeErrorBound,
 } from '../../shared/domain/rpm-moments'
+import { LOW_OIL_CHECK_OFF, makeTraceConfig } from '../../db/fixtures'
 
-const CFG: TraceConfig = {
-  idleRpm: 1500,
-  bandWidthRpm: 500,
-  maxGapS: 1,
-  overRevBands: [],
-  lowOilPressure: { belowBar: 0, aboveRpm: 0, minDurationS: 1 },
-  trackLengthKm: null,
-  laps: null,
-}
+const CFG: TraceConfig = makeTraceConfig({ idleRpm: 1500, bandWidthRpm: 500, maxGapS: 1, overRevBands: [], lowOilPressure: LOW_OIL_CHECK_OFF })
 
 /** The definition, written out: every step dt at the rpm of the sample that starts it, above idle, gaps excluded. */
 function perSampleIntegral(samples: TraceSample[], ref: number, p: number, cfg = CFG): number {

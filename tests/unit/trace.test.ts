@@ -14,23 +14,13 @@ import {
   type TraceConfig,
   type TraceSample,
 } from '../../shared/domain/trace'
+import { makeOverRevBands, makeTraceConfig } from '../../db/fixtures'
 
 function makeConfig(over: Partial<TraceConfig> = {}): TraceConfig {
-  return {
-    idleRpm: 2500,
-    bandWidthRpm: 500,
-    maxGapS: 1,
-    // log / inspect / teardown above the rev limit: common practice (levels are demo values)
-    overRevBands: [
-      { id: 'log', label: 'Logged', minRpm: 9000, minDurationS: 0.1, hysteresisRpm: 150 },
-      { id: 'inspect', label: 'Inspect valve train', minRpm: 9300, minDurationS: 0.1, hysteresisRpm: 150 },
-      { id: 'teardown', label: 'Teardown', minRpm: 9600, minDurationS: 0, hysteresisRpm: 150 },
-    ],
-    lowOilPressure: { belowBar: 2, aboveRpm: 3000, minDurationS: 0.5 },
-    trackLengthKm: null,
-    laps: null,
-    ...over,
-  }
+  // log / inspect / teardown above the rev limit: common practice (levels are demo values)
+  const overRevBands = makeOverRevBands([['log', 9000, 0.1], ['inspect', 9300, 0.1], ['teardown', 9600, 0]], { hysteresisRpm: 150 })
+  const lowOilPressure = { belowBar: 2, aboveRpm: 3000, minDurationS: 0.5 }
+  return makeTraceConfig({ idleRpm: 2500, bandWidthRpm: 500, maxGapS: 1, overRevBands, lowOilPressure, trackLengthKm: null, laps: null, ...over })
 }
 
 /** Samples at `hz` from t0 for `seconds` (end excluded), each from fn(t). */

@@ -1,7 +1,7 @@
-// Oil sample rows <-> domain values; no Nitro here, so the demo seed can use it too.
+// Oil sample rows <-> domain values; no Nitro here, so the demo seed writes samples the same way.
 import type { Knex } from 'knex'
 import { OIL_ELEMENTS, type OilSampleValues } from '#shared/domain/oil/limits'
-import { iso, json, numOrNull } from '../utils/db'
+import { iso, json, numOrNull } from './values'
 
 // ------------------------------------------------------------------ rows
 
