@@ -13,6 +13,8 @@ export default defineConfig({
         test: {
           name: 'unit',
           environment: 'node',
+          // property and reference-parser tests read large synthetic files: give a busy machine room
+          testTimeout: 30_000,
           include: ['tests/unit/**/*.test.ts'],
         },
       },
