@@ -15,12 +15,11 @@ import { assessEngineHistory, assessLatest, leaveOneOutLimits } from '#shared/do
 import { DEFAULT_PARTICLE_BASIS, PARTICLE_BASES, applyMapping, countsPerMl, headerSignature, mappingProblems, type OilCsvMapping, type ParticleBasis } from '#shared/domain/oil/lab-csv'
 import { OilLimitsSchema } from '#shared/schemas/oil'
 import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLabMappingDto, OilLimitsDto, OilSampleDto } from '#shared/types/oil'
-import type { Actor } from '../utils/guard'
 import { canSee, scopeQuery } from '../utils/guard'
 import { badRequest, conflict, notFound, zodMessage } from '../utils/errors'
 import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
-import { engineRowFor } from './fleet-scope'
+import { engineRowFor } from './engine-rows'
 import { bumpLifeRevision } from './fleet-data'
 import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from './oil-rows'
 
@@ -57,7 +56,7 @@ async function typePopulation(db: Db, engineTypeId: number): Promise<{ engineId:
 async function visibleEngineType(db: Db, actor: Actor, engineTypeId: number) {
   const type = await db('engine_types').where('id', engineTypeId).first('id', 'code', 'name', 'supplier_id')
   // Teams read the limits of their supplier's types; another supplier's type answers 404.
-  if (!type || (actor.role !== 'admin' && type.supplier_id !== actor.supplierId)) notFound('Engine type')
+  if (!type || !canReadCatalogue(actor, type.supplier_id)) notFound('Engine type')
   return type
 }
 
@@ -77,9 +76,7 @@ export async function oilLimitsView(db: Db, actor: Actor, engineTypeId: number):
 }
 
 export async function oilLimitsList(db: Db, actor: Actor): Promise<OilLimitsDto[]> {
-  const qb = db('engine_types').orderBy('code').select('id')
-  if (actor.role !== 'admin') qb.where('supplier_id', actor.supplierId)
-  const types = await qb
+  const types = await scopeCatalogue(db('engine_types').orderBy('code').select('id'), actor)
   const out: OilLimitsDto[] = []
   for (const t of types) out.push(await oilLimitsView(db, actor, t.id))
   return out
@@ -90,7 +87,7 @@ export async function saveOilLimits(db: Knex, actor: Actor, engineTypeId: number
     // Oil status shows on the board, which is cached per life revision.
     await bumpLifeRevision(trx)
     const type = await trx('engine_types').where('id', engineTypeId).forUpdate().first('id', 'supplier_id')
-    if (!type || (actor.role !== 'admin' && type.supplier_id !== actor.organisationId)) notFound('Engine type')
+    if (!type || !canWriteCatalogue(actor, type.supplier_id)) notFound('Engine type')
     const before = await trx('oil_limits').where('engine_type_id', engineTypeId).first()
     if (before) await trx('oil_limits').where('engine_type_id', engineTypeId).update({ limits: JSON.stringify(limits), updated_by: actor.id, updated_at: new Date() })
     else await trx('oil_limits').insert({ engine_type_id: engineTypeId, limits: JSON.stringify(limits), updated_by: actor.id })
@@ -374,9 +371,9 @@ export async function deleteOilSample(db: Knex, actor: Actor, id: number): Promi
 
 async function upsertMapping(trx: Knex.Transaction, actor: Actor, lab: string, headers: string[], mapping: OilCsvMapping, basis: ParticleBasis) {
   const row = { header_signature: headerSignature(headers), mapping: JSON.stringify(mapping), particle_basis: basis, updated_by: actor.id, updated_at: new Date() }
-  const existing = await trx('oil_lab_mappings').where({ organisation_id: actor.organisationId, lab }).forUpdate().first('id')
+  const existing = await scopeOwnOrganisation(trx('oil_lab_mappings'), actor, 'organisation_id').where({ lab }).forUpdate().first('id')
   if (existing) await trx('oil_lab_mappings').where('id', existing.id).update(row)
-  else await trx('oil_lab_mappings').insert({ organisation_id: actor.organisationId, lab, ...row })
+  else await trx('oil_lab_mappings').insert({ organisation_id: ownOrganisation(actor), lab, ...row })
 }
 
 export async function saveOilMapping(db: Knex, actor: Actor, input: { lab: string; headers: string[]; mapping: OilCsvMapping; particleBasis?: ParticleBasis }) {
@@ -392,7 +389,7 @@ export async function saveOilMapping(db: Knex, actor: Actor, input: { lab: strin
 
 /** The actor's organisation's saved lab layouts. */
 export async function oilMappings(db: Db, actor: Actor) {
-  const rows = await db('oil_lab_mappings').where('organisation_id', actor.organisationId).orderBy('lab')
+  const rows = await scopeOwnOrganisation(db('oil_lab_mappings'), actor, 'organisation_id').orderBy('lab')
   return rows.map((r): OilLabMappingDto => ({
     id: r.id as number,
     lab: r.lab as string,

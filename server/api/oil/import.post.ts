@@ -5,7 +5,7 @@ import { importOilCsv } from '../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const input = await readValidBody(event, OilImportSchema)
-  const result = await importOilCsv(useDb(), actor, input)
+  const result = await callService(importOilCsv, actor, input)
   setResponseStatus(event, 201)
   return result
 })

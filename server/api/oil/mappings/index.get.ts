@@ -3,5 +3,5 @@ import { oilMappings } from '../../../services/oil'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
-  return oilMappings(useDb(), actor)
+  return callService(oilMappings, actor)
 })

@@ -5,5 +5,5 @@ import { saveOilMapping } from '../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const input = await readValidBody(event, OilMappingSaveSchema)
-  return saveOilMapping(useDb(), actor, input)
+  return callService(saveOilMapping, actor, input)
 })
