@@ -50,9 +50,10 @@ function assertRoleAllowed(actor: Actor, role: Role, orgKind: 'supplier' | 'team
 export async function createUser(
   db: Knex,
   actor: Actor,
-  input: { email: string; name: string; role: Role; organisationId: number },
-  passwordHash: string,
+  input: { email: string; name: string; role: Role; organisationId: number; password: string },
 ): Promise<UserDto> {
+  // Hashed before the transaction, so no row stays locked while the hash is worked out.
+  const passwordHash = await hashPassword(input.password)
   return db.transaction(async (trx) => {
     if (!canManageUsersOf(actor, input.organisationId)) notFound('Organisation')
     const org = await trx('organisations').where('id', input.organisationId).first()
@@ -81,9 +82,9 @@ export async function updateUser(
   db: Knex,
   actor: Actor,
   id: number,
-  input: { name?: string; role?: Role; active?: boolean },
-  passwordHash?: string,
+  input: { name?: string; role?: Role; active?: boolean; password?: string },
 ): Promise<UserDto> {
+  const passwordHash = input.password ? await hashPassword(input.password) : undefined
   return db.transaction(async (trx) => {
     const before = await scopeUsers(baseQuery(trx), actor, 'u.organisation_id').where('u.id', id).forUpdate().first()
     if (!before) notFound('User')

@@ -1,6 +1,6 @@
 import { SESSION_WRITERS } from '#shared/roles'
 import { OilImportSchema } from '#shared/schemas/oil'
-import { importOilCsv } from '../../services/oil'
+import { importOilCsv } from '../../services/oil-lab'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)

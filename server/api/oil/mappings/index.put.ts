@@ -1,6 +1,6 @@
 import { SESSION_WRITERS } from '#shared/roles'
 import { OilMappingSaveSchema } from '#shared/schemas/oil'
-import { saveOilMapping } from '../../../services/oil'
+import { saveOilMapping } from '../../../services/oil-lab'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
