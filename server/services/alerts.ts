@@ -6,6 +6,7 @@ import { scopeQuery } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { conflict, notFound } from '../utils/errors'
 import { iso, json } from '../utils/db'
+import type { AlertRun } from '../utils/life-events'
 
 const OWNER = { supplier: 'a.supplier_id', team: 'a.team_id' }
 
@@ -116,4 +117,11 @@ export async function outboxView(db: Knex, q: { state?: 'pending' | 'sent' | 'fa
       createdAt: iso(r.created_at)!,
     })),
   }
+}
+
+/** Runs the life check and one mail round now, through the jobs the scheduler plugin wires (it fills the answer). */
+export async function runAlertsNow() {
+  const run: AlertRun = {}
+  await useNitroApp().hooks.callHook('crankledger:run-alerts', run)
+  return run.result
 }

@@ -5,7 +5,7 @@ import type { Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { bumpLifeRevision } from './fleet-data'
-import { engineRowFor } from './fleet-scope'
+import { engineRowFor } from './engine-rows'
 
 export async function fitPart(trx: Knex.Transaction, actor: Actor, engineId: number, input: { position: string; serial: string; at?: string }) {
   const engine = await engineRowFor(trx, actor, engineId, { forUpdate: true })

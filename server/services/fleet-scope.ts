@@ -17,12 +17,3 @@ export async function visibleEngine(db: Knex, actor: Actor, id: number): Promise
   if (!engine) notFound('Engine')
   return engine
 }
-
-/** Raw engine row, checked against the actor (404 for another team's engine). */
-export async function engineRowFor(db: Knex | Knex.Transaction, actor: Actor, id: number, opts: { forUpdate?: boolean } = {}) {
-  const qb = db('engines').where('id', id)
-  if (opts.forUpdate) qb.forUpdate()
-  const row = await qb.first()
-  if (!row || !canSee(actor, { supplierId: row.supplier_id, teamId: row.team_id })) notFound('Engine')
-  return row
-}

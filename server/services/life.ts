@@ -39,8 +39,23 @@ export interface FleetLife {
 
 type SessionRow = EngineSession & { bandWidthRpm: number; eventId: number | null }
 
+/**
+ * The whole fleet's life, in four steps: read the rows, index them, work out each engine (its
+ * fitted parts, their forecasts and the engine's summary), then the parts that sit in no engine.
+ */
 export async function computeFleetLife(db: Knex, now: Date, revision?: number): Promise<FleetLife> {
   const rev = revision ?? (await lifeRevision(db))
+  const fleet = indexFleet(await loadFleetRows(db, now))
+  const usageOf = partUsageCalculator(fleet)
+  const parts = new Map<number, PartLifeDto & { engineId: number | null }>()
+  const engines = fleet.engineRows.map((e) => engineLife(fleet, usageOf, e, parts))
+  addPartsOutsideEngines(fleet, usageOf, parts)
+  engines.sort((a, b) => a.serial.localeCompare(b.serial))
+  return { revision: rev, computedAt: now.toISOString(), engines, parts }
+}
+
+/** Step 1: everything life is derived from, read in one round of queries whatever the fleet size. */
+async function loadFleetRows(db: Knex, now: Date) {
   const [engineTypes, componentTypes, engineRows, installationRows, componentRows, sessionRows, eventRows, planRows, teamRows, oil] = await Promise.all([
     loadEngineTypes(db),
     loadComponentTypes(db),
@@ -53,42 +68,55 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     db('organisations').where('kind', 'team').select('id', 'name'),
     oilStatusByEngine(db),
   ])
-  const typeById = new Map(engineTypes.map((t) => [t.id, t]))
-  const ctById = new Map(componentTypes.map((c) => [c.id, c]))
-  const compById = new Map(componentRows.map((c: any) => [c.id, c]))
-  const teamName = new Map(teamRows.map((t: any) => [t.id, t.name as string]))
-  const engineById = new Map(engineRows.map((e: any) => [e.id, e]))
+  return { engineTypes, componentTypes, engineRows, installationRows, componentRows, sessionRows, eventRows, planRows, teamRows, oil }
+}
 
-  const sessionsByEngine = new Map<number, SessionRow[]>()
-  for (const s of sessionRows) {
-    let list = sessionsByEngine.get(s.engineId)
-    if (!list) sessionsByEngine.set(s.engineId, (list = []))
-    list.push(s)
+function groupBy<T, K>(items: Iterable<T>, keyOf: (item: T) => K): Map<K, T[]> {
+  const groups = new Map<K, T[]>()
+  for (const item of items) {
+    const key = keyOf(item)
+    let list = groups.get(key)
+    if (!list) groups.set(key, (list = []))
+    list.push(item)
   }
+  return groups
+}
 
-  const installations = installationRows.map(toInstallation)
-  const installsByComponent = new Map<number, typeof installations>()
-  for (const i of installations) {
-    let list = installsByComponent.get(i.componentId)
-    if (!list) installsByComponent.set(i.componentId, (list = []))
-    list.push(i)
+/** Step 2: the rows looked up by what each step asks for. */
+function indexFleet(rows: Awaited<ReturnType<typeof loadFleetRows>>) {
+  const installations = rows.installationRows.map(toInstallation)
+  return {
+    ...rows,
+    typeById: new Map(rows.engineTypes.map((t) => [t.id, t])),
+    ctById: new Map(rows.componentTypes.map((c) => [c.id, c])),
+    compById: new Map(rows.componentRows.map((c: any) => [c.id, c])),
+    teamName: new Map(rows.teamRows.map((t: any) => [t.id, t.name as string])),
+    engineById: new Map(rows.engineRows.map((e: any) => [e.id, e])),
+    sessionsByEngine: groupBy<SessionRow, number>(rows.sessionRows, (s) => s.engineId),
+    installsByComponent: groupBy(installations, (i) => i.componentId),
+    openByEngine: groupBy(installations.filter((i) => i.to === null), (i) => i.engineId),
+    plansByEngine: groupBy<any, number>(rows.planRows, (p) => p.engine_id),
   }
+}
+type FleetIndex = ReturnType<typeof indexFleet>
+type UsageOf = (componentId: number, componentType: ComponentTypeDto, inspectionClearedAt: string | null) => PartUsage
 
-  // One prefix-sum index per engine; a part's usage is the sum over its installation windows.
+/** A part's usage is the sum over its installation windows, each read from one prefix-sum index per engine. */
+function partUsageCalculator(fleet: FleetIndex): UsageOf {
   const indexes = new Map<number, UsageIndex>()
   const indexOf = (engineId: number) => {
     let idx = indexes.get(engineId)
     if (!idx) {
-      const engine = engineById.get(engineId)
-      idx = createUsageIndex(sessionsByEngine.get(engineId) ?? [], lifeConfig(typeById.get(engine.engine_type_id)!))
+      const engine = fleet.engineById.get(engineId)
+      idx = createUsageIndex(fleet.sessionsByEngine.get(engineId) ?? [], lifeConfig(fleet.typeById.get(engine.engine_type_id)!))
       indexes.set(engineId, idx)
     }
     return idx
   }
-  const usageOfComponent = (componentId: number, componentType: ComponentTypeDto, inspectionClearedAt: string | null): PartUsage => {
+  return (componentId, componentType, inspectionClearedAt) => {
     const limits = limitsOf(componentType)
     const total = emptyUsage()
-    for (const inst of installsByComponent.get(componentId) ?? []) {
+    for (const inst of fleet.installsByComponent.get(componentId) ?? []) {
       const idx = indexOf(inst.engineId)
       const from = idx.lowerBound(Date.parse(inst.from))
       const to = inst.to ? idx.lowerBound(Date.parse(inst.to)) : idx.sessions.length
@@ -102,35 +130,16 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
     }
     return total
   }
-  const openByEngine = new Map<number, typeof installations>()
-  for (const i of installations) {
-    if (i.to !== null) continue
-    let list = openByEngine.get(i.engineId)
-    if (!list) openByEngine.set(i.engineId, (list = []))
-    list.push(i)
-  }
+}
 
-  const plansByEngine = new Map<number, any[]>()
-  for (const p of planRows) {
-    let list = plansByEngine.get(p.engine_id)
-    if (!list) plansByEngine.set(p.engine_id, (list = []))
-    list.push(p)
-  }
+type ComingEvent = PlannedEvent & { assigned: boolean; chassis: string | null }
 
-  const parts = new Map<number, PartLifeDto & { engineId: number | null }>()
-  const engines: EngineDetailDto[] = []
-
-  for (const e of engineRows) {
-    const et = typeById.get(e.engine_type_id)!
-    const cfg = lifeConfig(et)
-    const engineSessions = sessionsByEngine.get(e.id) ?? []
-    const duty = recentDuty(engineSessions, RECENT_SESSIONS)
-    const meanPerEvent = meanRunningPerEvent(engineSessions)
-
-    // The engine's coming events: assigned ones first; else its series' calendar.
-    const plans = plansByEngine.get(e.id) ?? []
-    const seriesEvents = eventRows.filter((ev: any) => ev.series === et.series)
-    const planned: (PlannedEvent & { assigned: boolean; chassis: string | null })[] = seriesEvents.map((ev: any) => {
+/** The engine's coming events: its series' calendar, with the team's plan where the engine is assigned. */
+function comingEvents(fleet: FleetIndex, engineId: number, et: EngineTypeDto): ComingEvent[] {
+  const plans = fleet.plansByEngine.get(engineId) ?? []
+  return fleet.eventRows
+    .filter((ev: any) => ev.series === et.series)
+    .map((ev: any) => {
       const plan = plans.find((p) => p.event_id === ev.id)
       return {
         eventId: ev.id,
@@ -142,99 +151,106 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
         chassis: plan?.chassis ?? null,
       }
     })
+}
 
-    const open = openByEngine.get(e.id) ?? []
-    const partDtos: PartLifeDto[] = []
-    const forecastInputs = []
-    for (const inst of open) {
-      const comp = compById.get(inst.componentId)
-      const ct = ctById.get(comp.component_type_id)!
-      const limits = limitsOf(ct)
-      const usage = usageOfComponent(comp.id, ct, iso(comp.inspection_cleared_at))
-      const life = evaluatePartLife(usage, limits, cfg)
-      const fc = forecastPart(usage, limits, cfg, planned, duty, { defaultSecondsPerEvent: meanPerEvent ?? FALLBACK_SECONDS_PER_EVENT })
-      forecastInputs.push({ componentId: comp.id, forecast: fc, immediateInspection: life.immediateInspection })
-      const pos = et.positions.find((p) => p.position === inst.position)
-      const dto = partDto(comp, ct, usage, life, fc, inst.position, pos?.label ?? inst.position)
-      partDtos.push(dto)
-      parts.set(comp.id, { ...dto, engineId: e.id })
-    }
-    partDtos.sort((a, b) => positionSort(et, a.position) - positionSort(et, b.position))
+/** Step 3: one engine — its fitted parts' life and forecasts (recorded in `parts`), then the engine's summary. */
+function engineLife(fleet: FleetIndex, usageOf: UsageOf, e: any, parts: Map<number, PartLifeDto & { engineId: number | null }>): EngineDetailDto {
+  const et = fleet.typeById.get(e.engine_type_id)!
+  const cfg = lifeConfig(et)
+  const engineSessions = fleet.sessionsByEngine.get(e.id) ?? []
+  const duty = recentDuty(engineSessions, RECENT_SESSIONS)
+  const meanPerEvent = meanRunningPerEvent(engineSessions)
+  const planned = comingEvents(fleet, e.id, et)
 
-    const emptyPositions = et.positions.filter((p) => !open.some((i) => i.position === p.position))
-    const efc = forecastEngine(forecastInputs, planned, { emptyPositions: emptyPositions.length })
-    const plannedById = new Map(planned.map((p) => [p.eventId, p]))
-    const canFinish: CanFinishDto[] = efc.canFinish.map((c) => ({
-      ...c,
-      reason: c.reason ?? null,
-      dutyAssumed: duty.runningSeconds <= 0,
-      startsAt: plannedById.get(c.eventId)!.startsAt,
-      assigned: plannedById.get(c.eventId)!.assigned,
-      chassis: plannedById.get(c.eventId)!.chassis,
-    }))
-    const worstPart = partDtos.reduce<PartLifeDto | null>((w, p) => (!w || p.fraction > w.fraction ? p : w), null)
-    const groups = groupLife(partDtos)
-    const rebuiltAt = iso(e.rebuilt_at)
-    const totalSeconds = engineSessions.reduce((t, s) => t + s.runningSeconds, 0)
-    const sinceRebuild = engineSessions.filter((s) => !rebuiltAt || Date.parse(s.at) >= Date.parse(rebuiltAt)).reduce((t, s) => t + s.runningSeconds, 0)
-    const status: LifeStatus = partDtos.length ? worstStatus(partDtos.map((p) => p.status)) : 'ok'
-
-    engines.push({
-      id: e.id,
-      serial: e.serial,
-      engineTypeId: et.id,
-      engineTypeCode: et.code,
-      engineTypeName: et.name,
-      series: et.series,
-      supplierId: e.supplier_id,
-      teamId: e.team_id ?? null,
-      teamName: e.team_id ? (teamName.get(e.team_id) ?? null) : null,
-      status: e.status,
-      location: e.location,
-      chassis: e.chassis ?? null,
-      builtAt: iso(e.built_at)!,
-      rebuiltAt,
-      totalHours: totalSeconds / 3600,
-      hoursSinceRebuild: sinceRebuild / 3600,
-      sessions: engineSessions.length,
-      worst: {
-        fraction: worstPart?.fraction ?? 0,
-        status,
-        governing: worstPart?.governing ?? null,
-        serial: worstPart?.serial ?? null,
-        position: worstPart?.positionLabel ?? null,
-        typeName: worstPart?.typeName ?? null,
-      },
-      groups,
-      overRevFlags: {
-        immediateInspection: partDtos.some((p) => p.immediateInspection),
-        events: engineSessions.reduce((t, s) => t + s.overRevs.length, 0),
-      },
-      oilStatus: oil.get(e.id)?.status ?? null,
-      warningAt: efc.warningAt,
-      limitAt: efc.limitAt,
-      nextEvent: canFinish.find((c) => c.assigned) ?? canFinish[0] ?? null,
-      canFinish,
-      parts: partDtos,
-      emptyPositions,
-    })
+  const open = fleet.openByEngine.get(e.id) ?? []
+  const partDtos: PartLifeDto[] = []
+  const forecastInputs = []
+  for (const inst of open) {
+    const comp = fleet.compById.get(inst.componentId)
+    const ct = fleet.ctById.get(comp.component_type_id)!
+    const limits = limitsOf(ct)
+    const usage = usageOf(comp.id, ct, iso(comp.inspection_cleared_at))
+    const life = evaluatePartLife(usage, limits, cfg)
+    const fc = forecastPart(usage, limits, cfg, planned, duty, { defaultSecondsPerEvent: meanPerEvent ?? FALLBACK_SECONDS_PER_EVENT })
+    forecastInputs.push({ componentId: comp.id, forecast: fc, immediateInspection: life.immediateInspection })
+    const pos = et.positions.find((p) => p.position === inst.position)
+    const dto = partDto(comp, ct, usage, life, fc, inst.position, pos?.label ?? inst.position)
+    partDtos.push(dto)
+    parts.set(comp.id, { ...dto, engineId: e.id })
   }
+  partDtos.sort((a, b) => positionSort(et, a.position) - positionSort(et, b.position))
 
-  // Parts on the shelf, quarantined or scrapped still have a life to show.
-  for (const comp of componentRows) {
+  const emptyPositions = et.positions.filter((p) => !open.some((i) => i.position === p.position))
+  const efc = forecastEngine(forecastInputs, planned, { emptyPositions: emptyPositions.length })
+  const plannedById = new Map(planned.map((p) => [p.eventId, p]))
+  const canFinish: CanFinishDto[] = efc.canFinish.map((c) => ({
+    ...c,
+    reason: c.reason ?? null,
+    dutyAssumed: duty.runningSeconds <= 0,
+    startsAt: plannedById.get(c.eventId)!.startsAt,
+    assigned: plannedById.get(c.eventId)!.assigned,
+    chassis: plannedById.get(c.eventId)!.chassis,
+  }))
+  const worstPart = partDtos.reduce<PartLifeDto | null>((w, p) => (!w || p.fraction > w.fraction ? p : w), null)
+  const rebuiltAt = iso(e.rebuilt_at)
+  const totalSeconds = engineSessions.reduce((t, s) => t + s.runningSeconds, 0)
+  const sinceRebuild = engineSessions.filter((s) => !rebuiltAt || Date.parse(s.at) >= Date.parse(rebuiltAt)).reduce((t, s) => t + s.runningSeconds, 0)
+  const status: LifeStatus = partDtos.length ? worstStatus(partDtos.map((p) => p.status)) : 'ok'
+
+  return {
+    id: e.id,
+    serial: e.serial,
+    engineTypeId: et.id,
+    engineTypeCode: et.code,
+    engineTypeName: et.name,
+    series: et.series,
+    supplierId: e.supplier_id,
+    teamId: e.team_id ?? null,
+    teamName: e.team_id ? (fleet.teamName.get(e.team_id) ?? null) : null,
+    status: e.status,
+    location: e.location,
+    chassis: e.chassis ?? null,
+    builtAt: iso(e.built_at)!,
+    rebuiltAt,
+    totalHours: totalSeconds / 3600,
+    hoursSinceRebuild: sinceRebuild / 3600,
+    sessions: engineSessions.length,
+    worst: {
+      fraction: worstPart?.fraction ?? 0,
+      status,
+      governing: worstPart?.governing ?? null,
+      serial: worstPart?.serial ?? null,
+      position: worstPart?.positionLabel ?? null,
+      typeName: worstPart?.typeName ?? null,
+    },
+    groups: groupLife(partDtos),
+    overRevFlags: {
+      immediateInspection: partDtos.some((p) => p.immediateInspection),
+      events: engineSessions.reduce((t, s) => t + s.overRevs.length, 0),
+    },
+    oilStatus: fleet.oil.get(e.id)?.status ?? null,
+    warningAt: efc.warningAt,
+    limitAt: efc.limitAt,
+    nextEvent: canFinish.find((c) => c.assigned) ?? canFinish[0] ?? null,
+    canFinish,
+    parts: partDtos,
+    emptyPositions,
+  }
+}
+
+/** Step 4: parts on the shelf, quarantined or scrapped still have a life to show (no forecast: no coming events). */
+function addPartsOutsideEngines(fleet: FleetIndex, usageOf: UsageOf, parts: Map<number, PartLifeDto & { engineId: number | null }>) {
+  for (const comp of fleet.componentRows) {
     if (parts.has(comp.id)) continue
-    const ct = ctById.get(comp.component_type_id)!
-    const history = installsByComponent.get(comp.id) ?? []
-    const lastEngine = history.length ? engineById.get(history[history.length - 1]!.engineId) : null
-    const et = lastEngine ? typeById.get(lastEngine.engine_type_id) : engineTypes.find((t) => t.positions.some((p) => p.componentTypeId === ct.id))
+    const ct = fleet.ctById.get(comp.component_type_id)!
+    const history = fleet.installsByComponent.get(comp.id) ?? []
+    const lastEngine = history.length ? fleet.engineById.get(history[history.length - 1]!.engineId) : null
+    const et = lastEngine ? fleet.typeById.get(lastEngine.engine_type_id) : fleet.engineTypes.find((t) => t.positions.some((p) => p.componentTypeId === ct.id))
     if (!et) continue
-    const usage = usageOfComponent(comp.id, ct, iso(comp.inspection_cleared_at))
+    const usage = usageOf(comp.id, ct, iso(comp.inspection_cleared_at))
     const life = evaluatePartLife(usage, limitsOf(ct), lifeConfig(et))
     parts.set(comp.id, { ...partDto(comp, ct, usage, life, null, null, null), engineId: null })
   }
-
-  engines.sort((a, b) => a.serial.localeCompare(b.serial))
-  return { revision: rev, computedAt: now.toISOString(), engines, parts }
 }
 
 function partDto(

@@ -8,13 +8,14 @@ import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
 import type { EngineTypeDto } from '#shared/types/fleet'
 import { scopeQuery, type Actor } from '../utils/guard'
+import { announceLifeChanged } from '../utils/life-events'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
-import { engineRowFor } from './fleet-scope'
+import { engineRowFor } from './engine-rows'
 
 
 export interface ImportMeta {
@@ -114,7 +115,25 @@ function sessionFields(r: LoggerImportResult) {
   }
 }
 
-export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: Readable, maxBytes: number) {
+export interface LoggerUpload {
+  body: Readable
+  /** The request's content-length, 0 when not given. */
+  declaredBytes: number
+  maxBytes: number
+}
+
+/** Stores a streamed logger file as a session, then announces that life changed (the life check runs in the background). */
+export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, upload: LoggerUpload) {
+  const { declaredBytes, maxBytes } = upload
+  if (declaredBytes > maxBytes) {
+    throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(declaredBytes / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
+  }
+  const result = await storeLoggerFile(db, actor, meta, upload.body, maxBytes)
+  announceLifeChanged()
+  return result
+}
+
+async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: Readable, maxBytes: number) {
   // Check what can be checked before reading the file: engine, event, role scope.
   const engine = await engineRowFor(db, actor, meta.engineId)
   const [type] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
@@ -175,7 +194,9 @@ export async function reprocessSession(db: Knex, actor: Actor, sessionId: number
   const row = await sessionById(db, sessionId)
   if (!row) notFound('Session')
   await engineRowFor(db, actor, row.engine_id)
-  return reprocessStoredFile(db, actor, row, maxBytes)
+  const session = await reprocessStoredFile(db, actor, row, maxBytes)
+  announceLifeChanged()
+  return session
 }
 
 /**

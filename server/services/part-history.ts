@@ -2,7 +2,7 @@
 import type { Knex } from 'knex'
 import { addSession, emptyUsage, evaluatePartLife, sessionsForComponent, type EngineSession } from '#shared/domain/life'
 import type { Actor } from '../utils/guard'
-import { canSee } from '../utils/guard'
+import { canSee, canSeePart } from '../utils/guard'
 import { notFound } from '../utils/errors'
 import { iso } from '../utils/db'
 import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toInstallation } from './fleet-data'
@@ -29,9 +29,8 @@ export async function partHistory(db: Knex, actor: Actor, componentId: number) {
   if (!comp) notFound('Part')
   const installRows = await db('installations as i').join('engines as e', 'e.id', 'i.engine_id').where('i.component_id', componentId).orderBy('i.from_at').select('i.*', 'e.serial as engine_serial', 'e.team_id', 'e.supplier_id', 'e.engine_type_id')
   const current = installRows.find((r) => r.to_at === null)
-  const isSupplierSide = actor.role === 'admin' || (actor.organisationKind === 'supplier' && comp.supplier_id === actor.organisationId)
   // A team sees a part while it sits in one of its engines; the supplier sees all of its parts.
-  if (!isSupplierSide && !(current && current.team_id === actor.organisationId)) notFound('Part')
+  if (!canSeePart(actor, { supplierId: comp.supplier_id, currentTeamId: current?.team_id ?? null })) notFound('Part')
 
   const life = (await fleetLife(db)).parts.get(componentId)
   const [componentType] = await loadComponentTypes(db, (qb) => qb.where('id', comp.component_type_id))

@@ -12,8 +12,8 @@ import { badRequest, conflict, notFound } from '../utils/errors'
 import { bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toSessionDto } from './fleet-data'
 import { canSee } from '../utils/guard'
 import { json } from '../utils/db'
-import { engineRowFor } from './fleet-scope'
-import { triggerLifeCheck } from '../utils/alerts'
+import { engineRowFor } from './engine-rows'
+import { announceLifeChanged } from '../utils/life-events'
 
 export interface SessionExtras {
   /** exact equivalent hours for any exponent (sessions read from a logger file) */
@@ -122,7 +122,7 @@ export async function createManualSession(db: Knex, actor: Actor, input: ManualS
     return toSessionDto(await sessionById(trx, id))
   })
   // After the commit, so the check sees the new session; in the background, so the request does not wait.
-  triggerLifeCheck()
+  announceLifeChanged()
   return session
 }
 

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import { roleFitsOrganisation, type Role } from '#shared/roles'
-import type { Actor } from '../utils/guard'
+import { canManageUsersOf, mayGrantRole, scopeUsers, type Actor } from '../utils/guard'
 import { audit } from '../utils/audit'
 import { endUserSessions } from '../utils/auth-session'
 import { badRequest, conflict, forbidden, notFound } from '../utils/errors'
@@ -35,19 +35,14 @@ function baseQuery(db: Knex | Knex.Transaction) {
     .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.organisation_id', 'o.name as org_name', 'o.kind as org_kind')
 }
 
-/** Admins manage everyone; a team manager only the users of their own team. */
-function scopeUsers(qb: Knex.QueryBuilder, actor: Actor) {
-  return actor.role === 'admin' ? qb : qb.where('u.organisation_id', actor.organisationId)
-}
-
 export async function listUsers(db: Knex, actor: Actor): Promise<UserDto[]> {
-  const rows = await scopeUsers(baseQuery(db), actor).orderBy(['o.name', 'u.name'])
+  const rows = await scopeUsers(baseQuery(db), actor, 'u.organisation_id').orderBy(['o.name', 'u.name'])
   return rows.map(toDto)
 }
 
 function assertRoleAllowed(actor: Actor, role: Role, orgKind: 'supplier' | 'team') {
   if (!roleFitsOrganisation(role, orgKind)) badRequest(`Invalid input: role: ${role} does not belong in a ${orgKind} organisation`)
-  if (actor.role !== 'admin' && !['team_manager', 'race_engineer', 'mechanic'].includes(role)) {
+  if (!mayGrantRole(actor, role)) {
     forbidden('A team manager can give team roles only')
   }
 }
@@ -55,11 +50,12 @@ function assertRoleAllowed(actor: Actor, role: Role, orgKind: 'supplier' | 'team
 export async function createUser(
   db: Knex,
   actor: Actor,
-  input: { email: string; name: string; role: Role; organisationId: number },
-  passwordHash: string,
+  input: { email: string; name: string; role: Role; organisationId: number; password: string },
 ): Promise<UserDto> {
+  // Hashed before the transaction, so no row stays locked while the hash is worked out.
+  const passwordHash = await hashPassword(input.password)
   return db.transaction(async (trx) => {
-    if (actor.role !== 'admin' && input.organisationId !== actor.organisationId) notFound('Organisation')
+    if (!canManageUsersOf(actor, input.organisationId)) notFound('Organisation')
     const org = await trx('organisations').where('id', input.organisationId).first()
     if (!org) notFound('Organisation')
     assertRoleAllowed(actor, input.role, org.kind)
@@ -86,14 +82,14 @@ export async function updateUser(
   db: Knex,
   actor: Actor,
   id: number,
-  input: { name?: string; role?: Role; active?: boolean },
-  passwordHash?: string,
+  input: { name?: string; role?: Role; active?: boolean; password?: string },
 ): Promise<UserDto> {
+  const passwordHash = input.password ? await hashPassword(input.password) : undefined
   return db.transaction(async (trx) => {
-    const before = await scopeUsers(baseQuery(trx), actor).where('u.id', id).forUpdate().first()
+    const before = await scopeUsers(baseQuery(trx), actor, 'u.organisation_id').where('u.id', id).forUpdate().first()
     if (!before) notFound('User')
     if (input.role) assertRoleAllowed(actor, input.role, before.org_kind)
-    if (id === actor.id && (input.active === false || (input.role && input.role !== actor.role))) {
+    if (id === actor.id && (input.active === false || (input.role && input.role !== before.role))) {
       conflict('You cannot deactivate yourself or change your own role')
     }
     const patch: Record<string, unknown> = { updated_at: new Date() }

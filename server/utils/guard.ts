@@ -1,6 +1,6 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import type { Role } from '#shared/roles'
+import { ROLES_BY_KIND, type Role } from '#shared/roles'
 import type { Actor } from '#shared/types/actor'
 import { endSession, sessionEndedBy, sessionLimits, touchSession, type SessionCookie } from './auth-session'
 
@@ -72,21 +72,89 @@ async function sessionCookieOf(event: H3Event): Promise<SessionCookie | undefine
   return cookie
 }
 
-/** Columns that say who owns a record: the supplier that owns it and the team that runs it. */
+// ---------------------------------------------------------------------------------------------
+// Scoping: who may read and write what. The one place that looks at an actor's role and
+// organisation; services ask here and never compare roles or organisations themselves.
+// The table in DEVELOPERS.md states the same rule per resource.
+
+/** Columns that say who owns a fleet record: the supplier that owns the engine and the team that runs it. */
 export interface OwnerColumns {
   supplier: string
   team: string
 }
 
-/** Restrict a query to what the actor may see: admins everything, the supplier its own, a team its own. */
+const isAdmin = (actor: Actor) => actor.role === 'admin'
+const isSupplier = (actor: Actor) => actor.organisationKind === 'supplier'
+
+/** Fleet records (engines, parts, sessions, teardowns, oil samples, alerts, plans): admins all, the supplier its own, a team its own. Read and write alike. */
 export function scopeQuery<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, cols: OwnerColumns): Q {
-  if (actor.role === 'admin') return qb
-  if (actor.organisationKind === 'supplier') return qb.where(cols.supplier, actor.organisationId) as Q
+  if (isAdmin(actor)) return qb
+  if (isSupplier(actor)) return qb.where(cols.supplier, actor.organisationId) as Q
   return qb.where(cols.team, actor.organisationId) as Q
 }
 
+/** The same rule as `scopeQuery` for a record already read. */
 export function canSee(actor: Actor, owner: { supplierId: number | null; teamId: number | null }): boolean {
-  if (actor.role === 'admin') return true
-  if (actor.organisationKind === 'supplier') return owner.supplierId === actor.organisationId
+  if (isAdmin(actor)) return true
+  if (isSupplier(actor)) return owner.supplierId === actor.organisationId
   return owner.teamId === actor.organisationId
+}
+
+/** A part: admins; the supplier that owns it; a team while the part sits in one of its engines. */
+export function canSeePart(actor: Actor, part: { supplierId: number | null; currentTeamId: number | null }): boolean {
+  return canSee(actor, { supplierId: part.supplierId, teamId: part.currentTeamId })
+}
+
+/** A key naming everything the actor may see, for answers cached per scope. */
+export function scopeKey(actor: Actor): string {
+  return isAdmin(actor) ? 'all' : `${actor.organisationKind}:${actor.organisationId}`
+}
+
+/** Supplier catalogue (engine types, component types, events, oil limits) read: admins all; the supplier and its teams the supplier's. */
+export function scopeCatalogue<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, supplierColumn = 'supplier_id'): Q {
+  return isAdmin(actor) ? qb : (qb.where(supplierColumn, actor.supplierId) as Q)
+}
+export function canReadCatalogue(actor: Actor, supplierId: number | null): boolean {
+  return isAdmin(actor) || supplierId === actor.supplierId
+}
+/** Supplier catalogue write: admins, and the supplier itself (never a team, whatever its role list). */
+export function canWriteCatalogue(actor: Actor, supplierId: number | null): boolean {
+  return isAdmin(actor) || supplierId === actor.organisationId
+}
+/** The supplier a new catalogue record belongs to. */
+export function catalogueOwner(actor: Actor): number | null {
+  return actor.supplierId
+}
+
+/** Organisations: admins all; the supplier itself and its teams; a team itself. */
+export function scopeOrganisations<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, cols = { id: 'id', supplier: 'supplier_id' }): Q {
+  if (isAdmin(actor)) return qb
+  if (isSupplier(actor)) return qb.where((w) => w.where(cols.id, actor.organisationId).orWhere(cols.supplier, actor.organisationId)) as Q
+  return qb.where(cols.id, actor.organisationId) as Q
+}
+
+/** The audit trail: admins all; everyone else the entries of their supplier and its teams. */
+export function scopeAuditTrail<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, cols: { id: string; supplier: string }): Q {
+  if (isAdmin(actor)) return qb
+  return qb.where((w) => w.where(cols.id, actor.supplierId).orWhere(cols.supplier, actor.supplierId)) as Q
+}
+
+/** Users: admins all; a user manager the users of its own organisation. */
+export function scopeUsers<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, organisationColumn: string): Q {
+  return isAdmin(actor) ? qb : (qb.where(organisationColumn, actor.organisationId) as Q)
+}
+export function canManageUsersOf(actor: Actor, organisationId: number): boolean {
+  return isAdmin(actor) || organisationId === actor.organisationId
+}
+/** Only an admin hands out supplier-side roles; a team manager gives the roles of a team. */
+export function mayGrantRole(actor: Actor, role: Role): boolean {
+  return isAdmin(actor) || ROLES_BY_KIND.team.includes(role)
+}
+
+/** Records kept per organisation for its own work (logger profiles, lab mappings): the actor's own organisation, admins included. */
+export function scopeOwnOrganisation<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, organisationColumn: string): Q {
+  return qb.where(organisationColumn, actor.organisationId) as Q
+}
+export function ownOrganisation(actor: Actor): number {
+  return actor.organisationId
 }

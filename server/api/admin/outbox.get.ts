@@ -8,5 +8,5 @@ const Query = z.object({
 
 export default defineEventHandler(async (event) => {
   await requireActor(event, ['admin'])
-  return outboxView(useDb(), readValidQuery(event, Query))
+  return callService(outboxView, readValidQuery(event, Query))
 })

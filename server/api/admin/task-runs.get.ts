@@ -6,5 +6,5 @@ const Query = z.object({ limit: z.coerce.number().int().min(1).max(500).default(
 export default defineEventHandler(async (event) => {
   await requireActor(event, ['admin'])
   const { limit } = readValidQuery(event, Query)
-  return recentTaskRuns(useDb(), limit)
+  return callService(recentTaskRuns, limit)
 })

@@ -6,5 +6,5 @@ import { listAlerts } from '../../services/alerts'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ANY_ROLE)
   const query = readValidQuery(event, AlertListQuery)
-  return listAlerts(useDb(), actor, query)
+  return callService(listAlerts, actor, query)
 })

@@ -1,52 +1,11 @@
 import { SUPPLIER_ROLES } from '#shared/roles'
 import { ComponentTypeUpdateSchema } from '#shared/schemas/fleet'
-import type { Knex } from 'knex'
-import { bumpLifeRevision, toComponentType } from '../../services/fleet-data'
-
-const COLUMNS = {
-  name: 'name', limitHours: 'limit_hours', limitKm: 'limit_km', limitEqHours: 'limit_eq_hours', limitOverRev: 'limit_over_rev',
-  immediateInspectionBand: 'immediate_inspection_band', warningLevel: 'warning_level', dueLevel: 'due_level', damageExponent: 'damage_exponent',
-  characteristics: 'characteristics',
-} as const
-const JSON_COLUMNS = new Set(['limitOverRev', 'characteristics'])
+import { updateComponentType } from '../../services/component-types'
 
 // A limit change moves the life of every part of this type at once: life is derived at read time.
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SUPPLIER_ROLES)
   const { id } = readValidParams(event, IdParams)
   const input = await readValidBody(event, ComponentTypeUpdateSchema)
-  return useDb().transaction(async (trx) => {
-    const before = await trx('component_types').where('id', id).forUpdate().first()
-    if (!before || (actor.role !== 'admin' && before.supplier_id !== actor.organisationId)) notFound('Component type')
-    const warning = input.warningLevel ?? Number(before.warning_level)
-    const due = input.dueLevel ?? Number(before.due_level)
-    if (warning >= due) badRequest('Invalid input: dueLevel: must be above the warning level')
-    if (input.characteristics) await keepRecordedReadings(trx, id, toComponentType(before).characteristics, input.characteristics)
-    const patch: Record<string, unknown> = { updated_at: new Date() }
-    for (const [key, value] of Object.entries(input)) {
-      patch[COLUMNS[key as keyof typeof COLUMNS]] = JSON_COLUMNS.has(key) ? JSON.stringify(value) : value
-    }
-    await trx('component_types').where('id', id).update(patch)
-    const after = await trx('component_types').where('id', id).first()
-    await audit(trx, actor, { entity: 'component_type', entityId: id, action: 'update-limits', before: toComponentType(before), after: toComponentType(after) })
-    await bumpLifeRevision(trx)
-    return toComponentType(after)
-  })
+  return callService(updateComponentType, actor, id, input)
 })
-
-/** Teardown readings keep their meaning: a characteristic with readings is neither dropped nor given another unit (409). */
-async function keepRecordedReadings(trx: Knex.Transaction, typeId: number, before: { key: string; unit: string }[], after: { key: string; unit: string }[]) {
-  const changed = before.filter((b) => after.find((a) => a.key === b.key)?.unit !== b.unit)
-  if (!changed.length) return
-  const used: { key: string; n: number | string }[] = await trx('teardown_measurements as m')
-    .join('components as c', 'c.id', 'm.component_id')
-    .where('c.component_type_id', typeId)
-    .whereIn('m.characteristic_key', changed.map((c) => c.key))
-    .groupBy('m.characteristic_key')
-    .select('m.characteristic_key as key')
-    .count({ n: '*' })
-  if (used.length) {
-    const what = used.map((u) => `${u.key} (${u.n} reading${Number(u.n) === 1 ? '' : 's'})`).join(', ')
-    conflict(`Invalid input: characteristics: ${what} already recorded at teardowns; keep the key and its unit`)
-  }
-}

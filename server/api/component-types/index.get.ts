@@ -1,9 +1,7 @@
 import { FLEET_READERS } from '#shared/roles'
-import { loadComponentTypes } from '../../services/fleet-data'
+import { listComponentTypes } from '../../services/component-types'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
-  return loadComponentTypes(useDb(), (qb) => {
-    if (actor.role !== 'admin') qb.where('supplier_id', actor.supplierId)
-  })
+  return callService(listComponentTypes, actor)
 })

@@ -1,10 +1,8 @@
 import { FLEET_READERS } from '#shared/roles'
-import { loadEngineTypes } from '../../services/fleet-data'
+import { listEngineTypes } from '../../services/engine-types'
 
 // Engine types belong to the supplier; its teams read those of their supplier.
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
-  return loadEngineTypes(useDb(), (qb) => {
-    if (actor.role !== 'admin') qb.where('supplier_id', actor.supplierId)
-  })
+  return callService(listEngineTypes, actor)
 })

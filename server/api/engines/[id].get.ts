@@ -1,8 +1,8 @@
 import { FLEET_READERS } from '#shared/roles'
-import { visibleEngine } from '../../services/fleet-scope'
+import { engineDetail } from '../../services/engines'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return visibleEngine(useDb(), actor, id)
+  return callService(engineDetail, actor, id)
 })

@@ -3,5 +3,5 @@ import { alertPrefsOf } from '../../services/alerts'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ANY_ROLE)
-  return alertPrefsOf(useDb(), actor)
+  return callService(alertPrefsOf, actor)
 })

@@ -5,5 +5,5 @@ import { saveAlertPrefs } from '../../services/alerts'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ANY_ROLE)
   const input = await readValidBody(event, AlertPrefsSchema)
-  return saveAlertPrefs(useDb(), actor, input)
+  return callService(saveAlertPrefs, actor, input)
 })

@@ -1,11 +1,10 @@
 import { ANY_ROLE } from '#shared/roles'
+import { signOutEverywhere } from '../../services/account'
 
 // Sign out everywhere: ends every session of the signed-in user, this one included, on every instance.
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ANY_ROLE)
-  const db = useDb()
-  const ended = await endUserSessions(db, actor.id, 'everywhere')
-  await audit(db, actor, { entity: 'user', entityId: actor.id, action: 'sign-out-everywhere', after: { sessions: ended } })
+  const result = await callService(signOutEverywhere, actor)
   await clearUserSession(event)
-  return { ended }
+  return result
 })

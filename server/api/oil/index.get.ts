@@ -3,5 +3,5 @@ import { oilList } from '../../services/oil'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
-  return oilList(useDb(), actor)
+  return callService(oilList, actor)
 })

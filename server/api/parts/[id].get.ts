@@ -4,5 +4,5 @@ import { partHistory } from '../../services/part-history'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return partHistory(useDb(), actor, id)
+  return callService(partHistory, actor, id)
 })

@@ -5,7 +5,7 @@ import { createManualSession } from '../../services/sessions'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const input = await readValidBody(event, ManualSessionSchema)
-  const session = await createManualSession(useDb(), actor, input)
+  const session = await callService(createManualSession, actor, input)
   setResponseStatus(event, 201)
   return session
 })

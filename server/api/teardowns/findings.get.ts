@@ -1,7 +1,7 @@
-import { fleetFindings } from '../../services/teardowns'
+import { fleetFindings } from '../../services/teardowns/findings'
 
 // Findings across the fleet per component type: the evidence for adjusting a limit.
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ['admin', 'supplier_engineer', 'mechanic'])
-  return fleetFindings(useDb(), actor)
+  return callService(fleetFindings, actor)
 })

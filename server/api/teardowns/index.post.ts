@@ -1,10 +1,10 @@
 import { TEARDOWN_WORKERS, TeardownStartSchema } from '#shared/schemas/teardown'
-import { startTeardown } from '../../services/teardowns'
+import { startTeardown } from '../../services/teardowns/sheet'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, TEARDOWN_WORKERS)
   const input = await readValidBody(event, TeardownStartSchema)
-  const result = await useDb().transaction((trx) => startTeardown(trx, actor, input))
+  const result = await callInTransaction(startTeardown, actor, input)
   setResponseStatus(event, 201)
   return result
 })

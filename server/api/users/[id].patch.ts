@@ -6,6 +6,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, USER_MANAGERS)
   const { id } = readValidParams(event, IdParams)
   const input = await readValidBody(event, UserUpdateSchema)
-  const passwordHash = input.password ? await hashPassword(input.password) : undefined
-  return updateUser(useDb(), actor, id, input, passwordHash)
+  return callService(updateUser, actor, id, input)
 })

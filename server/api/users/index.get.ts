@@ -3,5 +3,5 @@ import { listUsers } from '../../services/users'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, USER_MANAGERS)
-  return listUsers(useDb(), actor)
+  return callService(listUsers, actor)
 })

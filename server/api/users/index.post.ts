@@ -5,7 +5,7 @@ import { createUser } from '../../services/users'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, USER_MANAGERS)
   const input = await readValidBody(event, UserCreateSchema)
-  const user = await createUser(useDb(), actor, input, await hashPassword(input.password))
+  const user = await callService(createUser, actor, input)
   setResponseStatus(event, 201)
   return user
 })

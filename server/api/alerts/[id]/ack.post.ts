@@ -6,5 +6,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ANY_ROLE)
   const { id } = readValidParams(event, IdParams)
   const { comment } = await readValidBody(event, AlertAckSchema)
-  return acknowledgeAlert(useDb(), actor, id, comment)
+  return callService(acknowledgeAlert, actor, id, comment)
 })

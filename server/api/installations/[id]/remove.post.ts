@@ -5,5 +5,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ['admin', 'supplier_engineer', 'mechanic'])
   const { id } = readValidParams(event, IdParams)
   const input = await readValidBody(event, RemoveSchema)
-  return useDb().transaction((trx) => removePart(trx, actor, id, input))
+  return callInTransaction(removePart, actor, id, input)
 })

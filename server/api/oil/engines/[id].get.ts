@@ -4,5 +4,5 @@ import { engineOil } from '../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return engineOil(useDb(), actor, id)
+  return callService(engineOil, actor, id)
 })

@@ -4,5 +4,5 @@ import { oilLimitsView } from '../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return oilLimitsView(useDb(), actor, id)
+  return callService(oilLimitsView, actor, id)
 })

@@ -7,5 +7,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SUPPLIER_ROLES)
   const { id } = readValidParams(event, IdParams)
   const limits = await readValidBody(event, OilLimitsSchema)
-  return saveOilLimits(useDb(), actor, id, limits as OilLimits)
+  return callService(saveOilLimits, actor, id, limits as OilLimits)
 })

@@ -3,5 +3,5 @@ import { oilLimitsList } from '../../../services/oil'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
-  return oilLimitsList(useDb(), actor)
+  return callService(oilLimitsList, actor)
 })

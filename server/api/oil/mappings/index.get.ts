@@ -1,7 +1,7 @@
 import { SESSION_WRITERS } from '#shared/roles'
-import { oilMappings } from '../../../services/oil'
+import { oilMappings } from '../../../services/oil-lab'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
-  return oilMappings(useDb(), actor)
+  return callService(oilMappings, actor)
 })

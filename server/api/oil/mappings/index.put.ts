@@ -1,9 +1,9 @@
 import { SESSION_WRITERS } from '#shared/roles'
 import { OilMappingSaveSchema } from '#shared/schemas/oil'
-import { saveOilMapping } from '../../../services/oil'
+import { saveOilMapping } from '../../../services/oil-lab'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const input = await readValidBody(event, OilMappingSaveSchema)
-  return saveOilMapping(useDb(), actor, input)
+  return callService(saveOilMapping, actor, input)
 })

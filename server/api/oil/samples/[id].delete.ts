@@ -4,7 +4,7 @@ import { deleteOilSample } from '../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const { id } = readValidParams(event, IdParams)
-  await deleteOilSample(useDb(), actor, id)
+  await callService(deleteOilSample, actor, id)
   setResponseStatus(event, 204)
   return null
 })

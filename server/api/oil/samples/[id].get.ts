@@ -4,5 +4,5 @@ import { oilSample } from '../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return oilSample(useDb(), actor, id)
+  return callService(oilSample, actor, id)
 })

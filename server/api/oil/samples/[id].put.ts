@@ -6,5 +6,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, SESSION_WRITERS)
   const { id } = readValidParams(event, IdParams)
   const { lab, ...sample } = await readValidBody(event, OilSampleUpdateSchema)
-  return updateOilSample(useDb(), actor, id, lab ?? null, sample)
+  return callService(updateOilSample, actor, id, lab ?? null, sample)
 })

@@ -5,5 +5,5 @@ import { sessionView } from '../../../services/sessions'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  return sessionView(useDb(), actor, id)
+  return callService(sessionView, actor, id)
 })

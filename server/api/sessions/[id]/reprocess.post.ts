@@ -4,7 +4,5 @@ import { reprocessSession } from '../../../services/logger-import'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'])
   const { id } = readValidParams(event, IdParams)
-  const session = await reprocessSession(useDb(), actor, id, Number(useRuntimeConfig().loggerMaxBytes))
-  triggerLifeCheck()
-  return session
+  return callService(reprocessSession, actor, id, Number(useRuntimeConfig().loggerMaxBytes))
 })

@@ -1,10 +1,10 @@
 import { SignOffSchema, TEARDOWN_SIGNERS } from '#shared/schemas/teardown'
-import { signOffTeardown } from '../../../services/teardowns'
+import { signOffTeardown } from '../../../services/teardowns/sign-off'
 
 // The second person's sign-off: the engine goes back to active with a new build.
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, TEARDOWN_SIGNERS)
   const { id } = readValidParams(event, IdParams)
   const input = await readValidBody(event, SignOffSchema)
-  return useDb().transaction((trx) => signOffTeardown(trx, actor, id, input))
+  return callInTransaction(signOffTeardown, actor, id, input)
 })

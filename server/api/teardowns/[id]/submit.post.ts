@@ -1,8 +1,8 @@
 import { TEARDOWN_WORKERS } from '#shared/schemas/teardown'
-import { submitTeardown } from '../../../services/teardowns'
+import { submitTeardown } from '../../../services/teardowns/sign-off'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, TEARDOWN_WORKERS)
   const { id } = readValidParams(event, IdParams)
-  return useDb().transaction((trx) => submitTeardown(trx, actor, id))
+  return callInTransaction(submitTeardown, actor, id)
 })

@@ -4,7 +4,7 @@ import { oilReport } from '../../../../services/oil'
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, FLEET_READERS)
   const { id } = readValidParams(event, IdParams)
-  const report = await oilReport(useDb(), actor, id)
+  const report = await callService(oilReport, actor, id)
   setResponseHeaders(event, {
     'content-type': 'application/pdf',
     'content-length': report.data.length,

@@ -6,5 +6,5 @@ export default defineEventHandler(async (event) => {
   const { id } = readValidParams(event, IdParams)
   // The size cap is enforced while the upload is read, not after.
   const file = await readFileUpload(event, { field: 'file', maxBytes: PDF_MAX_BYTES })
-  return attachOilReport(useDb(), actor, id, { data: Buffer.from(file.bytes), filename: file.name ?? undefined, type: file.declaredType ?? undefined })
+  return callService(attachOilReport, actor, id, { data: Buffer.from(file.bytes), filename: file.name ?? undefined, type: file.declaredType ?? undefined })
 })
