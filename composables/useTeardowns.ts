@@ -52,3 +52,27 @@ export async function useTeardown(id: Ref<number>) {
 
   return { td: teardown.data, error: teardown.error, refresh, saveMeasurement, saveFinding, uploadPhoto, swapPart, transition }
 }
+
+/** One teardown as its printable report shows it (read once: the report does not change it). */
+export async function useTeardownReport(id: number) {
+  const report = await useFetch<any>(`/api/teardowns/${id}`, { key: `teardown-report-${id}` })
+  return { td: report.data, error: report.error }
+}
+
+export interface TypeFindings { componentTypeId: number; code: string; name: string; limitHours: number | null; findings: number; conditions: { condition: string; count: number; minHours: number; maxHours: number; meanHours: number }[]; dispositions: Record<string, number>; rows: { findingId: number; teardownId: number; engineSerial: string; serial: string; condition: string; disposition: string; note: string | null; hours: number; at: string }[] }
+
+/** Teardown findings across the fleet, per part type. */
+export async function useFleetFindings() {
+  const findings = await useFetch<TypeFindings[]>('/api/teardowns/findings', { key: 'fleet-findings', default: () => [] })
+  return { data: findings.data, error: findings.error, refresh: findings.refresh }
+}
+
+interface WearPoint { teardownId: number; engineSerial: string; at: string; hours: number; value: number; verdict: string }
+export interface WearChar { key: string; label: string; unit: string; nominal: number; min: number; max: number; points: WearPoint[]; slopePerHour: number | null; intercept: number | null; n: number; towards: 'min' | 'max' | null; hoursLeft: number | null }
+export interface PartWear { componentId: number; serial: string; typeName: string; currentHours: number; characteristics: WearChar[]; notice: string }
+
+/** One part's teardown readings over its running hours, with the fitted wear rate. */
+export async function usePartWear(partId: MaybeRefOrGetter<number>) {
+  const wear = await useFetch<PartWear>(() => `/api/parts/${toValue(partId)}/wear`, { key: `wear-${toValue(partId)}` })
+  return { data: wear.data, error: wear.error }
+}

@@ -1,5 +1,5 @@
 // The client's layers, read from the source tree: pages and components never call the API themselves
-// (stores/ and composables/ do), pages stay short, and no client file grows past a screenful of screens.
+// (stores/ and composables/ do), pages stay short, and no client file passes 400 lines.
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { describe, expect, it } from 'vitest'
@@ -39,6 +39,11 @@ describe('client layers', () => {
 
   it('no page calls $fetch: reads and writes go through stores/ and composables/', () => {
     const offenders = pages.filter((rel) => readFileSync(join(root, rel), 'utf8').includes('$fetch('))
+    expect(offenders).toEqual([])
+  })
+
+  it('no page or component reads with useFetch or useAsyncData: composables hold the keys', () => {
+    const offenders = viewFiles.filter((rel) => existsSync(join(root, rel)) && /\buse(Lazy)?(Fetch|AsyncData)\(/.test(readFileSync(join(root, rel), 'utf8')))
     expect(offenders).toEqual([])
   })
 
