@@ -1,4 +1,5 @@
 import type { ComponentTypeDto, EngineTypeDto } from '#shared/types/fleet'
+import type { CategoryLevels } from '~/components/engine/EngineBoardRow.vue'
 
 /** Engine types with their design sheets; creating one and changing its loads. */
 export async function useEngineTypes() {
@@ -29,5 +30,15 @@ export async function useComponentTypes() {
     await types.refresh()
   }
 
-  return { componentTypes: types.data, error: types.error, refresh: types.refresh, createComponentType, updateComponentType }
+  // Ticks on a group bar: the earliest warning and due level of the part types in that group.
+  const levelsByCategory = computed<Record<string, CategoryLevels>>(() => {
+    const out: Record<string, CategoryLevels> = {}
+    for (const t of types.data.value) {
+      const cur = out[t.category]
+      out[t.category] = cur ? { warningLevel: Math.min(cur.warningLevel, t.warningLevel), dueLevel: Math.min(cur.dueLevel, t.dueLevel) } : { warningLevel: t.warningLevel, dueLevel: t.dueLevel }
+    }
+    return out
+  })
+
+  return { componentTypes: types.data, levelsByCategory, error: types.error, refresh: types.refresh, createComponentType, updateComponentType }
 }
