@@ -16,6 +16,11 @@ export const useActorStore = defineStore('actor', () => {
     return actor.value
   }
 
+  async function signIn(email: string, password: string) {
+    await $fetch('/api/auth/login', { method: 'POST', body: { email, password } })
+    return load()
+  }
+
   function can(...roles: Role[]) {
     return actor.value ? roles.includes(actor.value.role) : false
   }
@@ -26,5 +31,5 @@ export const useActorStore = defineStore('actor', () => {
     await navigateTo('/login')
   }
 
-  return { actor, load, can, signOut }
+  return { actor, load, signIn, can, signOut }
 })
