@@ -12,13 +12,12 @@
 // The bin keeps the moments T = sum dt, M1 = sum dt u, M2 = sum dt u^2, so that
 //   sum dt exp(p u) = T + p M1 + p^2 M2 / 2 + R,  |R| <= sum dt |x|^3 / 6 * e^|x|,  x = p u.
 // Against the exact bin value (at least T e^(-x_max)) the relative error is at most
-// x_max^3 / 6 * e^(2 x_max) with x_max = p DELTA / 2: 2.0e-4 at p = 20 (MAX_EXACT_EXPONENT).
+// x_max^3 / 6 * e^(2 x_max) with x_max = p DELTA / 2: 2.0e-4 at p = 20, 2.0e-3 at p = 40 (the most a
+// part type accepts); the session page states the bound for the exponents of the parts fitted.
 // p = 0 gives plain running hours exactly.
 
 /** Width of one bin in ln(rpm): 1 % of rpm. */
 export const DELTA = 0.01
-/** The error bound below is stated for exponents up to this (component types allow 0..20). */
-export const MAX_EXACT_EXPONENT = 20
 const INV_DELTA = 1 / DELTA
 const SECONDS_PER_HOUR = 3600
 
@@ -39,7 +38,7 @@ export function momentsRelativeErrorBound(exponent: number): number {
   return ((x * x * x) / 6) * Math.exp(2 * x)
 }
 
-export function binOfRpm(rpm: number): number {
+function binOfRpm(rpm: number): number {
   return Math.floor(Math.log(rpm) * INV_DELTA)
 }
 
@@ -137,13 +136,6 @@ export function eqCacheOf(m: RpmMoments, referenceRpm: number, exponents: number
   const cache: Record<string, number> = {}
   for (const p of exponents) cache[eqCacheKey(p, referenceRpm)] = equivalentHoursFromMoments(m, referenceRpm, p)
   return cache
-}
-
-/** Total running seconds the moments hold. */
-export function momentsSeconds(m: RpmMoments): number {
-  let s = 0
-  for (const t of m.t) s += t
-  return s
 }
 
 // Storage: little-endian float64s [first, count, t..., m1..., m2...], a few kB a session,
