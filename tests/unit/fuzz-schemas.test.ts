@@ -4,22 +4,14 @@
 // editing this file. For arbitrary JSON (and for objects built from the schema's own keys with
 // arbitrary values, which get past the first type check), safeParse never throws and every
 // failure carries at least one issue with a message, which the API turns into its 400 answer.
-import { readdirSync } from 'node:fs'
-import { fileURLToPath } from 'node:url'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
+import { schemaModules } from './schema-modules'
 import { z } from 'zod'
 import { zodMessage } from '../../server/utils/errors'
 
 const RUNS = Number(process.env.FUZZ_RUNS ?? 200)
-const shared = fileURLToPath(new URL('../../shared/', import.meta.url))
-
-const modules: Record<string, Record<string, unknown>> = {}
-for (const f of readdirSync(`${shared}schemas`).filter((f) => f.endsWith('.ts'))) {
-  modules[`shared/schemas/${f}`] = await import(`${shared}schemas/${f}`)
-}
-modules['shared/domain/oil/schema.ts'] = await import('../../shared/domain/oil/schema')
-modules['shared/domain/logger-mapping.ts'] = await import('../../shared/domain/logger-mapping')
+const modules = await schemaModules()
 
 function isZod(v: unknown): v is z.ZodType {
   return v instanceof z.ZodType || (typeof v === 'object' && v !== null && '_zod' in v && typeof (v as z.ZodType).safeParse === 'function')

@@ -3,19 +3,12 @@
 // mapping are imported, and every string found anywhere inside every exported schema (object
 // fields, list items, record keys and values, optional, default, union and pipe wrappers) is
 // checked by itself. A text field added later without `line()` or `multiline()` fails here.
-import { readdirSync } from 'node:fs'
-import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
+import { schemaModules } from './schema-modules'
 import { z } from 'zod'
 import { MULTI_LINE_MESSAGE, SINGLE_LINE_MESSAGE } from '../../shared/text'
 
-const shared = fileURLToPath(new URL('../../shared/', import.meta.url))
-const modules: Record<string, Record<string, unknown>> = {}
-for (const f of readdirSync(`${shared}schemas`).filter((f) => f.endsWith('.ts'))) {
-  modules[`shared/schemas/${f}`] = await import(`${shared}schemas/${f}`)
-}
-modules['shared/domain/oil/schema.ts'] = await import('../../shared/domain/oil/schema')
-modules['shared/domain/logger-mapping.ts'] = await import('../../shared/domain/logger-mapping')
+const modules = await schemaModules()
 modules['shared/domain/teardown.ts'] = await import('../../shared/domain/teardown')
 
 const FACTORIES: Record<string, (f: (...a: any[]) => unknown) => unknown> = {
