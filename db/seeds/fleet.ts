@@ -214,7 +214,9 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
     const t = ENGINE_TYPES.find((x) => x.code === f.type)!
     const seriesEvents = events[t.series]!
     const firstRound = 8 - f.rounds
-    const builtAt = new Date((seriesEvents[Math.max(0, firstRound)]?.startsAt ?? now) - 10 * DAY)
+    // Ten days before its first round; an engine with no round yet was built a week ago, never later:
+    // the next round's date would put its build in the future when the seed runs early in the UTC day.
+    const builtAt = new Date(Math.min((seriesEvents[Math.max(0, firstRound)]?.startsAt ?? now) - 10 * DAY, now - 7 * DAY))
     const [engineId] = await trx('engines').insert({
       serial: f.serial,
       engine_type_id: typeIds[f.type],
