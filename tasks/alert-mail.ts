@@ -41,7 +41,10 @@ export const levelWord = (level: string) => ALERT_LEVEL_INFO[level as AlertLevel
 function partLine(p: MailAlert['parts'][number]): string {
   const bits = [`${p.position ?? p.name ?? 'Part'} ${p.serial ?? ''}`.trim()]
   if (p.fraction !== null) bits.push(`${percent(p.fraction)} consumed`)
-  if (p.governing) bits.push(`${p.governing.label}: ${fmt(p.governing.used)} of ${fmt(p.governing.limit)} ${p.governing.unit}`)
+  if (p.governing) {
+    const n = (v: number) => (p.governing!.unit === 'events' ? String(v) : fmt(v))
+    bits.push(`${p.governing.label}: ${n(p.governing.used)} of ${n(p.governing.limit)} ${p.governing.unit}`)
+  }
   return bits.join(' – ')
 }
 

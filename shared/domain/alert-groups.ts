@@ -62,7 +62,7 @@ export function describeAlertGroup(s: AlertGroupSubject, partsIn: GroupedPart[])
   const verb = many ? 'have' : 'has'
   const action =
     s.level === 'over'
-      ? `${verb} reached a ${governing} limit: the engine must not run until they are replaced or released by the supplier.`
+      ? `${verb} reached a life limit (${governing}): the engine must not run until they are replaced or released by the supplier.`
       : s.level === 'due'
         ? `${many ? 'are' : 'is'} due for a rebuild (${governing}): plan the teardown now.`
         : `${verb} reached the warning level (${governing}): plan the rebuild.`

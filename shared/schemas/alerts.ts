@@ -83,12 +83,12 @@ export function deliveryWanted(stored: unknown, kind: AlertKind, level: string):
   return { digest: m.digest, immediate: isUrgentLevel(level) && m.immediate }
 }
 
-const ackComment = multiline().trim().max(1000, 'must be at most 1000 characters').default('')
-export const AlertAckSchema = z.object({ comment: ackComment }).strict()
+const ackComment = () => multiline().trim().max(1000, 'must be at most 1000 characters').default('')
+export const AlertAckSchema = z.object({ comment: ackComment() }).strict()
 
 export const EngineAlertsAckSchema = z
   .object({
-    comment: ackComment,
+    comment: ackComment(),
     /** Only alerts up to this id: one that arrived after the page was read is not acknowledged unseen. */
     throughId: z.coerce.number().int().positive().optional(),
   })
