@@ -11,6 +11,8 @@ export async function up(knex: Knex) {
     const rows = await trx('alerts as a')
       .leftJoin('components as c', 'c.id', 'a.component_id')
       .leftJoin('component_types as ct', 'ct.id', 'c.component_type_id')
+      // only alerts from before: those that list no part yet (so running it again changes nothing)
+      .whereNotExists(trx('alert_parts').whereRaw('alert_parts.alert_id = a.id'))
       .select('a.*', 'ct.category as category')
       .orderBy('a.id')
     const acked = new Set((await trx('alert_acks').distinct('alert_id')).map((r: any) => Number(r.alert_id)))

@@ -172,3 +172,47 @@ describe('acknowledge-all per engine', () => {
     expect((await managerA.post(`/api/alerts/engines/${engineId}/ack`, {})).body.acknowledged).toBe(0)
   })
 })
+
+describe('alerts from before one alert per engine and cause', () => {
+  it('are folded by the migration: one check run\'s alerts of one engine, cause and level become one, with acknowledgements, recipients and mails', async () => {
+    const { up } = await import('../../db/migrations/20261204_01_b_alert_groups_fold')
+    const rods = await db()('installations as i').join('components as c', 'c.id', 'i.component_id').where('i.engine_id', engineId).whereIn('i.position', ['rod-1', 'rod-2']).orderBy('i.position').select('c.id', 'c.serial')
+    const supplierRow = await db()('engines').where('id', engineId).first()
+    const [runX] = await db()('task_runs').insert({ task: 'life-check', instance: 'before', outcome: 'ok', started_at: new Date() })
+    const [runY] = await db()('task_runs').insert({ task: 'life-check', instance: 'before', outcome: 'ok', started_at: new Date() })
+    const manager = await db()('users').where('email', USERS.managerA).first()
+    const engineer = await db()('users').where('email', USERS.supplierEngineer).first()
+    const tag = randomUUID().slice(0, 8)
+    const old = async (key: string, kind: string, level: string, rod: any, run: number) => {
+      const details = { engineSerial: SERIAL, engineTypeCode: 'KV8', teamName: null, partSerial: rod.serial, partName: 'Connecting rod', position: rod.serial.endsWith('1') ? 'Conrod 1' : 'Conrod 2', status: level, fraction: 1.2, governing: null, event: null, message: 'old' }
+      const [id] = await db()('alerts').insert({ alert_key: `${key}:${tag}`, kind, level, engine_id: engineId, component_id: rod.id, supplier_id: supplierRow.supplier_id, team_id: supplierRow.team_id, title: `old ${key}`, details: JSON.stringify(details), task_run_id: run, created_at: new Date() })
+      return Number(id)
+    }
+    const a1 = await old('inspect-rod-1', 'over-rev', 'inspection', rods[0], runX)
+    const a2 = await old('inspect-rod-2', 'over-rev', 'inspection', rods[1], runX)
+    const b1 = await old('over-rod-1', 'life-over', 'over', rods[0], runX)
+    const b2 = await old('over-rod-2', 'life-over', 'over', rods[1], runY)
+    await db()('alert_recipients').insert([a1, a2].flatMap((alertId) => [manager, engineer].map((u) => ({ alert_id: alertId, user_id: u.id, by_email: true }))))
+    const [mail] = await db()('mail_outbox').insert({ alert_id: a2, user_id: manager.id, to_address: USERS.managerA, subject: 'old', html: 'old', text: 'old', state: 'sent', next_attempt_at: new Date(), created_at: new Date() })
+    await db()('alert_acks').insert({ alert_id: b2, user_id: manager.id, at: new Date(), comment: 'seen' })
+
+    await up(db())
+    expect(await db()('alerts').where('id', a2).first()).toBeUndefined()
+    const folded = await db()('alerts').where('id', a1).first()
+    expect([folded.cause, folded.cause_label, folded.group_key, folded.component_id]).toEqual(['over-rev', 'Over-rev', `engine:${engineId}:over-rev:inspection`, null])
+    expect(folded.title).toBe(`${SERIAL} over-rev – immediate inspection of 2 parts`)
+    expect((await db()('alert_parts').where('alert_id', a1).orderBy('item_key').pluck('item_key'))).toEqual([`inspect-rod-1:${tag}`, `inspect-rod-2:${tag}`])
+    expect((await db()('alert_recipients').where('alert_id', a1).pluck('user_id')).sort()).toEqual([manager.id, engineer.id].sort())
+    expect((await db()('mail_outbox').where('id', mail).first()).alert_id).toBe(a1)
+    // Different runs stay apart, each with its one part and its own acknowledgement.
+    for (const [id, acked] of [[b1, 0], [b2, 1]] as const) {
+      const row = await db()('alerts').where('id', id).first()
+      expect(row.cause).toBe('life:Crank drive')
+      expect(Number((await db()('alert_parts').where('alert_id', id).count({ n: '*' }).first())!.n)).toBe(1)
+      expect(Number((await db()('alert_acks').where('alert_id', id).count({ n: '*' }).first())!.n)).toBe(acked)
+    }
+    // Running it again changes nothing.
+    await up(db())
+    expect(Number((await db()('alert_parts').where('alert_id', a1).count({ n: '*' }).first())!.n)).toBe(2)
+  })
+})
