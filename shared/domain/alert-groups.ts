@@ -25,14 +25,6 @@ export const percentText = (fraction: number) => `${Math.round(fraction * 100)} 
 
 const partLabel = (p: GroupedPart) => `${(p.position ?? p.name ?? 'part').toLowerCase()} ${p.serial ?? ''}`.trim()
 
-/** "conrod 1 KV8ROD-1, conrod 2 KV8ROD-2 and 1 more": short enough for a subject line. */
-export function partList(parts: GroupedPart[], max = 3): string {
-  const names = parts.slice(0, max).map(partLabel)
-  const rest = parts.length - names.length
-  if (rest > 0) return `${names.join(', ')} and ${rest} more`
-  return names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names.at(-1)}` : (names[0] ?? '')
-}
-
 const worst = (parts: GroupedPart[]) => parts.reduce<number | null>((w, p) => (p.fraction === null ? w : w === null ? p.fraction : Math.max(w, p.fraction)), null)
 
 /** Most consumed first, then by position: the part that governs reads first. */
@@ -50,19 +42,19 @@ export function describeAlertGroup(s: AlertGroupSubject, partsIn: GroupedPart[])
     return {
       title: `${s.engineSerial} over-rev – immediate inspection of ${many ? `${n} parts` : partLabel(parts[0]!)}`,
       message:
-        `${s.engineSerial} has logged an over-rev in the band that demands an immediate inspection of ${partList(parts, 12)}: ` +
-        'do not run the engine until they have been inspected and signed off.',
+        `${s.engineSerial} has logged an over-rev in the band that demands an immediate inspection of ${many ? `${n} parts` : partLabel(parts[0]!)}: ` +
+        `do not run the engine until ${many ? 'they have' : 'it has'} been inspected and signed off.`,
     }
   }
   const word = LIFE_WORDS[s.level] ?? s.level
   const w = worst(parts)
   const governing = [...new Set(parts.map((p) => p.governingLabel?.toLowerCase()).filter(Boolean))].join(', ') || 'life'
   const what = many ? `${n} parts${w === null ? '' : `, worst ${percentText(w)}`}` : `${partLabel(parts[0]!)}${w === null ? '' : ` at ${percentText(w)}`}`
-  const whose = many ? `${n} parts of the ${group} group (${partList(parts, 12)})` : `${parts[0]!.name ?? 'The part'} ${parts[0]!.serial}`
+  const whose = many ? `${n} parts of the ${group} group` : `${parts[0]!.name ?? 'The part'} ${parts[0]!.serial}`
   const verb = many ? 'have' : 'has'
   const action =
     s.level === 'over'
-      ? `${verb} reached a life limit (${governing}): the engine must not run until they are replaced or released by the supplier.`
+      ? `${verb} reached a life limit (${governing}): the engine must not run until ${many ? 'they are' : 'it is'} replaced or released by the supplier.`
       : s.level === 'due'
         ? `${many ? 'are' : 'is'} due for a rebuild (${governing}): plan the teardown now.`
         : `${verb} reached the warning level (${governing}): plan the rebuild.`

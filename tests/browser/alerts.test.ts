@@ -74,3 +74,27 @@ describe('alerts page', () => {
     await page.close()
   })
 })
+
+describe('alert settings page', () => {
+  it('keeps the digest and switches off the urgent mail at once, and says so after saving', async () => {
+    const manager = await signIn(USERS.managerA)
+    const page = await signedInPage(browser, USERS.managerA)
+    await page.goto('/settings/alerts')
+    const immediate = page.locator('input[name=immediate]')
+    await immediate.waitFor()
+    expect(await page.locator('input[name=digest]').isChecked()).toBe(true)
+    expect(await immediate.isChecked()).toBe(true)
+    try {
+      await immediate.uncheck()
+      await page.click('form button[type=submit]')
+      await expect.poll(() => page.locator('[role=status]').textContent()).toBe('Saved.')
+      expect((await manager.get('/api/me/alert-prefs')).body).toMatchObject({ digest: true, immediate: false })
+      await screenshot(page, 'alert-settings-laptop')
+      await page.setViewportSize(TABLET)
+      await screenshot(page, 'alert-settings-tablet')
+    } finally {
+      await manager.put('/api/me/alert-prefs', { immediate: true })
+      await page.close()
+    }
+  })
+})
