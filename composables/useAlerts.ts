@@ -17,9 +17,10 @@ export async function useAlerts(filters: Ref<AlertFilters>) {
     await groups.refresh()
   }
 
-  /** Every open alert of the engine up to the newest one the page shows. */
+  /** Every open alert of the engine the page shows (its level and cause filters, up to the newest one shown). */
   async function acknowledgeEngine(engineId: number, comment: string, throughId: number) {
-    const answer = await $fetch<{ acknowledged: number }>(`/api/alerts/engines/${engineId}/ack`, { method: 'POST', body: { comment, throughId } })
+    const { level, cause } = filters.value
+    const answer = await $fetch<{ acknowledged: number }>(`/api/alerts/engines/${engineId}/ack`, { method: 'POST', body: { comment, throughId, level, cause } })
     await groups.refresh()
     return answer
   }

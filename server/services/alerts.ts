@@ -111,19 +111,22 @@ export async function acknowledgeAlert(db: Knex, actor: Actor, id: number, comme
 
 /**
  * Acknowledges every open alert of one engine the actor may see (up to `throughId` when given, so
- * an alert that arrived after the page was read is not acknowledged unseen). One audit entry lists them.
+ * an alert that arrived after the page was read is not acknowledged unseen), and only those of the
+ * page's level and cause when it filters. One audit entry lists them.
  */
-export async function acknowledgeEngineAlerts(db: Knex, actor: Actor, engineId: number, input: { comment: string; throughId?: number }) {
+export async function acknowledgeEngineAlerts(db: Knex, actor: Actor, engineId: number, input: { comment: string; throughId?: number } & Pick<AlertListFilter, 'level' | 'cause'>) {
   return db.transaction(async (trx) => {
     const visible = scopeQuery(trx('alerts as a'), actor, OWNER).where('a.engine_id', engineId)
     if (!(await visible.clone().first('a.id'))) await engineRowFor(trx, actor, engineId)
     const open = visible.clone().whereNotExists(unacked(trx)).orderBy('a.id').forUpdate()
     if (input.throughId) open.where('a.id', '<=', input.throughId)
+    if (input.level) open.where('a.level', input.level)
+    if (input.cause) open.whereIn('a.kind', KINDS_OF_CAUSE[input.cause])
     const ids: number[] = (await open.pluck('a.id')).map(Number)
     if (!ids.length) return { engineId, acknowledged: 0, alertIds: [] as number[] }
     const at = new Date()
     await trx('alert_acks').insert(ids.map((id) => ({ alert_id: id, user_id: actor.id, at, comment: input.comment })))
-    await audit(trx, actor, { entity: 'engine', entityId: engineId, action: 'acknowledge-alerts', after: { alertIds: ids, comment: input.comment } })
+    await audit(trx, actor, { entity: 'engine', entityId: engineId, action: 'acknowledge-alerts', after: { alertIds: ids, comment: input.comment, ...(input.level ? { level: input.level } : {}), ...(input.cause ? { cause: input.cause } : {}) } })
     return { engineId, acknowledged: ids.length, alertIds: ids }
   })
 }

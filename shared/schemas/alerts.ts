@@ -91,6 +91,9 @@ export const EngineAlertsAckSchema = z
     comment: ackComment(),
     /** Only alerts up to this id: one that arrived after the page was read is not acknowledged unseen. */
     throughId: z.coerce.number().int().positive().optional(),
+    /** the page's filters: only the alerts it shows are acknowledged */
+    level: z.enum(ALERT_LEVELS).optional(),
+    cause: z.enum(ALERT_CAUSES).optional(),
   })
   .strict()
 

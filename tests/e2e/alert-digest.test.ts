@@ -167,8 +167,13 @@ describe('acknowledge-all per engine', () => {
     // Open on the page: only the late one; acknowledging again takes it and nothing else.
     const open = (await managerA.get(`/api/alerts/engines?engineId=${engineId}&state=open`)).body
     expect(open[0].alerts.map((a: any) => a.id)).toEqual([lateId])
-    const again = await managerA.post(`/api/alerts/engines/${engineId}/ack`, {})
+    // With the page's filters, only what it shows: the late one is an oil caution, not a life limit.
+    expect((await managerA.post(`/api/alerts/engines/${engineId}/ack`, { cause: 'life' })).body).toEqual({ engineId, acknowledged: 0, alertIds: [] })
+    expect((await managerA.post(`/api/alerts/engines/${engineId}/ack`, { level: 'nonsense' })).status).toBe(400)
+    const again = await managerA.post(`/api/alerts/engines/${engineId}/ack`, { cause: 'oil', level: 'caution' })
     expect(again.body).toEqual({ engineId, acknowledged: 1, alertIds: [lateId] })
+    const filtered = (await supplier.get('/api/audit?entity=engine&action=acknowledge-alerts')).body.items[0]
+    expect(filtered.after).toEqual({ alertIds: [lateId], comment: '', level: 'caution', cause: 'oil' })
     expect((await managerA.post(`/api/alerts/engines/${engineId}/ack`, {})).body.acknowledged).toBe(0)
   })
 })
