@@ -1,10 +1,13 @@
-// The life check: turns the fleet's life into alerts, each exactly once per finding and life cycle,
-// and queues one e-mail per recipient in the outbox (delivery is deliver-outbox.ts).
+// The life check: turns the fleet's life into alerts, one per engine and cause listing its parts, each
+// finding exactly once per life cycle, and queues the mail in the outbox: a digest per recipient and
+// run, urgent levels at once as well (alert-record.ts; delivery is deliver-outbox.ts).
 // Handed everything it needs (database, fleet life, clock, lock); it knows nothing of the server.
 import type { Knex } from 'knex'
 import type { EngineDetailDto, PartLifeDto } from '#shared/types/fleet'
-import { ALERT_MAIL_ROLES, emailWanted, type AlertDetails, type AlertKind } from '#shared/schemas/alerts'
-import { percent, renderAlertMail } from './alert-mail'
+import type { AlertDetails, AlertKind } from '#shared/schemas/alerts'
+import { alertCause } from '#shared/domain/alert-groups'
+import { percent } from './alert-mail'
+import { queueAlertMail, recordGroup, type FindingGroup } from './alert-record'
 import type { TaskLock } from './lock'
 
 export const LIFE_CHECK_LOCK = 'crankledger-life-check'
@@ -20,9 +23,11 @@ export interface Finding {
   level: string
   engineId: number
   componentId: number | null
-  /** The subject line without the product prefix. */
+  /** The finding's own title (the alert's when it stays alone). */
   title: string
   details: AlertDetails
+  /** What the alert is about (a part group, the over-rev verdict, a forecast's event ...): findings of one engine, cause and level share an alert. Derived from the kind when absent. */
+  cause?: { cause: string; label: string }
 }
 
 export interface FindingContext {
@@ -47,6 +52,8 @@ export interface LifeCheckResult {
   outcome: 'ok' | 'skipped' | 'error'
   findings: number
   alertsCreated: number
+  /** open alerts that gained parts */
+  alertsUpdated: number
   mailsQueued: number
   error: string | null
 }
@@ -101,6 +108,7 @@ export function lifeFindings(life: FleetLifeView, cycles: LifeCycles): Finding[]
           level: p.status,
           engineId: e.id,
           componentId: p.componentId,
+          cause: alertCause(LIFE_KIND[p.status]!, { category: p.category }),
           title: `${e.serial} ${partName(p)} ${p.serial} at ${percent(p.fraction)} (${STATUS_WORDS[p.status]}) – ${governing}`,
           details: {
             ...baseDetails(e, p),
@@ -168,70 +176,17 @@ async function loadCycles(db: Knex): Promise<LifeCycles> {
   }
 }
 
-/**
- * Stores one alert and its e-mails in one transaction. Answers false when the finding is already
- * known: the unique key makes a second (or concurrent) run a no-op.
- */
-export async function recordAlert(
-  db: Knex,
-  finding: Finding,
-  owner: { supplierId: number; teamId: number | null },
-  ctx: { runId: number | null; now: Date; publicUrl: string },
-): Promise<{ created: boolean; mails: number }> {
-  return db.transaction(async (trx) => {
-    let alertId: number
-    try {
-      const [id] = await trx('alerts').insert({
-        alert_key: finding.key,
-        kind: finding.kind,
-        level: finding.level,
-        engine_id: finding.engineId,
-        component_id: finding.componentId,
-        supplier_id: owner.supplierId,
-        team_id: owner.teamId,
-        title: finding.title.slice(0, 300),
-        details: JSON.stringify(finding.details),
-        task_run_id: ctx.runId,
-        created_at: ctx.now,
-      })
-      alertId = Number(id)
-    } catch (e: any) {
-      if (e?.code === 'ER_DUP_ENTRY') return { created: false, mails: 0 }
-      throw e
-    }
-    const people = await trx('users')
-      .where('active', true)
-      .where((q) => {
-        q.where((s) => s.where('organisation_id', owner.supplierId).where('role', ALERT_MAIL_ROLES[0]))
-        if (owner.teamId !== null) q.orWhere((s) => s.where('organisation_id', owner.teamId).where('role', ALERT_MAIL_ROLES[1]))
-      })
-      .orderBy('id')
-      .select('id', 'email', 'name', 'alert_prefs')
-    const mail = renderAlertMail(finding.title, finding.details, finding.engineId, ctx.publicUrl)
-    let mails = 0
-    for (const u of people) {
-      const byEmail = emailWanted(typeof u.alert_prefs === 'string' ? JSON.parse(u.alert_prefs) : u.alert_prefs, finding.kind)
-      let outboxId: number | null = null
-      if (byEmail) {
-        const [oid] = await trx('mail_outbox').insert({
-          alert_id: alertId,
-          user_id: u.id,
-          to_address: u.email,
-          subject: mail.subject.slice(0, 300),
-          html: mail.html,
-          text: mail.text,
-          state: 'pending',
-          attempts: 0,
-          next_attempt_at: ctx.now,
-          created_at: ctx.now,
-        })
-        outboxId = Number(oid)
-        mails++
-      }
-      await trx('alert_recipients').insert({ alert_id: alertId, user_id: u.id, by_email: byEmail, outbox_id: outboxId })
-    }
-    return { created: true, mails }
-  })
+/** Findings of one engine, cause and level, in the order found. */
+export function groupFindings(findings: Finding[]): FindingGroup[] {
+  const groups = new Map<string, FindingGroup>()
+  for (const f of findings) {
+    const cause = f.cause ?? alertCause(f.kind, { event: f.details.event })
+    const key = `${f.engineId}|${cause.cause}|${f.level}`
+    const g = groups.get(key) ?? { engineId: f.engineId, kind: f.kind, level: f.level, cause: cause.cause, causeLabel: cause.label, items: [] }
+    g.items.push({ key: f.key, componentId: f.componentId, title: f.title, details: f.details })
+    groups.set(key, g)
+  }
+  return [...groups.values()]
 }
 
 export async function runLifeCheck(deps: LifeCheckDeps): Promise<LifeCheckResult> {
@@ -240,7 +195,7 @@ export async function runLifeCheck(deps: LifeCheckDeps): Promise<LifeCheckResult
   const release = await deps.lock.tryAcquire(LIFE_CHECK_LOCK)
   if (!release) {
     const [runId] = await db('task_runs').insert({ task: 'life-check', instance: deps.instance, outcome: 'skipped', started_at: startedAt, finished_at: deps.now(), error: 'another instance is running the life check' })
-    return { runId: Number(runId), outcome: 'skipped', findings: 0, alertsCreated: 0, mailsQueued: 0, error: null }
+    return { runId: Number(runId), outcome: 'skipped', findings: 0, alertsCreated: 0, alertsUpdated: 0, mailsQueued: 0, error: null }
   }
   let runId = 0
   try {
@@ -248,6 +203,7 @@ export async function runLifeCheck(deps: LifeCheckDeps): Promise<LifeCheckResult
     runId = Number(inserted)
     let findings = 0
     let alertsCreated = 0
+    let alertsUpdated = 0
     let mailsQueued = 0
     try {
       const now = deps.now()
@@ -257,23 +213,24 @@ export async function runLifeCheck(deps: LifeCheckDeps): Promise<LifeCheckResult
       if (deps.extraFindings) all.push(...(await deps.extraFindings({ db, now, life })))
       findings = all.length
       const engines = new Map(life.engines.map((e) => [e.id, e]))
-      for (const f of all) {
-        let owner = engines.get(f.engineId) as { supplierId: number; teamId: number | null } | undefined
+      for (const g of groupFindings(all)) {
+        let owner = engines.get(g.engineId) as { supplierId: number; teamId: number | null } | undefined
         if (!owner) {
-          const row = await db('engines').where('id', f.engineId).first('supplier_id', 'team_id')
+          const row = await db('engines').where('id', g.engineId).first('supplier_id', 'team_id')
           if (!row) continue
           owner = { supplierId: row.supplier_id, teamId: row.team_id ?? null }
         }
-        const r = await recordAlert(db, f, { supplierId: owner.supplierId, teamId: owner.teamId ?? null }, { runId, now, publicUrl: deps.publicUrl })
-        if (r.created) alertsCreated++
-        mailsQueued += r.mails
+        const r = await recordGroup(db, g, { supplierId: owner.supplierId, teamId: owner.teamId ?? null }, { runId, now })
+        if (r.change === 'new') alertsCreated++
+        if (r.change === 'added') alertsUpdated++
       }
+      mailsQueued = await queueAlertMail(db, { now: deps.now(), publicUrl: deps.publicUrl })
       await db('task_runs').where('id', runId).update({ outcome: 'ok', finished_at: deps.now(), findings, alerts_created: alertsCreated, mails_queued: mailsQueued })
-      return { runId, outcome: 'ok', findings, alertsCreated, mailsQueued, error: null }
+      return { runId, outcome: 'ok', findings, alertsCreated, alertsUpdated, mailsQueued, error: null }
     } catch (e: any) {
       const error = String(e?.message ?? e).slice(0, 1000)
       await db('task_runs').where('id', runId).update({ outcome: 'error', finished_at: deps.now(), findings, alerts_created: alertsCreated, mails_queued: mailsQueued, error })
-      return { runId, outcome: 'error', findings, alertsCreated, mailsQueued, error }
+      return { runId, outcome: 'error', findings, alertsCreated, alertsUpdated, mailsQueued, error }
     }
   } finally {
     await release()

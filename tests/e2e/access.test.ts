@@ -40,6 +40,7 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/admin/outbox': ['admin'],
   '/api/admin/task-runs': ['admin'],
   '/api/alerts': ALL,
+  '/api/alerts/engines': ALL,
   '/api/audit': SUPPLIER,
   '/api/board': ALL,
   '/api/component-types': ALL,
@@ -97,6 +98,7 @@ beforeAll(async () => {
   ids = {
     'engines.id': engine.id,
     'oil/engines.id': engine.id,
+    'engines.engineId': engine.id,
     'plans.engineId': engine.id,
     'installations.id': inst.id,
     'parts.id': inst.component_id,

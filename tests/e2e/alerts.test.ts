@@ -1,4 +1,5 @@
-// Life check and alert e-mail, end to end against the test database and real SMTP (maildev).
+// Life check and alert e-mail, end to end against the test database and real SMTP (maildev): alerts
+// per engine and cause, a digest per recipient and run, "do not run" at once as well.
 // The jobs are called directly here (the shared test server runs with alerts switched off), with
 // fleet life from the same service the server uses.
 import { spawn } from 'node:child_process'
@@ -10,22 +11,15 @@ import { computeFleetLife } from '../../server/services/life'
 import { deliverOutbox, type MailTransport } from '../../tasks/deliver-outbox'
 import { LIFE_CHECK_LOCK, runLifeCheck, type Finding, type LifeCheckDeps } from '../../tasks/life-check'
 import { mariadbLock, noLock } from '../../tasks/lock'
+import { addressesOf, clearInbox, expectedRecipients, inbox, isDigest, isDoNotRun, to, type Mail } from './alert-helpers'
 import { BASE, db, signIn, USERS, type Client } from './helpers'
 import { freePort } from './servers'
 
 const SMTP_PORT = Number(process.env.NUXT_SMTP_PORT || 1027)
-const MAIL_WEB = `http://127.0.0.1:${process.env.CL_MAILDEV_WEB || 1082}`
 const FROM = 'Crankledger <alerts@crankledger.local>'
 
 const smtp = (port: number): MailTransport => nodemailer.createTransport({ host: '127.0.0.1', port, ignoreTLS: true, connectionTimeout: 3000, greetingTimeout: 3000 })
 const sharedMail = smtp(SMTP_PORT)
-
-interface Mail { subject: string; to: { address: string }[]; text: string; html: string }
-const inbox = async (web = MAIL_WEB): Promise<Mail[]> => (await fetch(`${web}/api/email`)).json()
-const clearInbox = async (web = MAIL_WEB) => {
-  await fetch(`${web}/api/email/all`, { method: 'DELETE' })
-}
-const addressesOf = (mails: Mail[]) => mails.flatMap((m) => m.to.map((t) => t.address.toLowerCase())).sort()
 
 function checkDeps(over: Partial<LifeCheckDeps> = {}): LifeCheckDeps {
   return {
@@ -41,29 +35,26 @@ function checkDeps(over: Partial<LifeCheckDeps> = {}): LifeCheckDeps {
 const deliver = (transport: MailTransport = sharedMail, over: Partial<Parameters<typeof deliverOutbox>[0]> = {}) =>
   deliverOutbox({ db: db(), transport, now: () => new Date(), from: FROM, instance: 'test-runner', ...over })
 
-/** The people an alert about this engine should reach by e-mail: supplier engineers and the running team's managers. */
-async function expectedRecipients(engineId: number): Promise<string[]> {
-  const e = await db()('engines').where('id', engineId).first()
-  const rows = await db()('users')
-    .where('active', true)
-    .where((q) => q.where({ organisation_id: e.supplier_id, role: 'supplier_engineer' }).orWhere({ organisation_id: e.team_id, role: 'team_manager' }))
-    .select('email')
-  return rows.map((r: any) => r.email.toLowerCase()).sort()
-}
+/** The alert that lists a finding. */
+const alertOf = (f: Finding) => db()('alerts as a').join('alert_parts as p', 'p.alert_id', 'a.id').where('p.item_key', f.key).first('a.*')
+/** The digests that carried an alert's news. */
+const digestRows = (alertId: number) => db()('mail_outbox').whereIn('id', db()('alert_notices').where('alert_id', alertId).select('digest_outbox_id')).orderBy('id')
 
 async function engineBySerial(serial: string) {
   return db()('engines').where({ serial }).first()
 }
 
-/** A finding from outside the life check (as the oil feature will hand in), unique to one test. */
+/** A finding from outside the life check (as the oil check hands in), unique to one test: its own cause, so its own alert. */
 function extraFinding(engine: { id: number; serial: string }, tag: string, kind: Finding['kind'] = 'oil-caution'): Finding {
+  const id = randomUUID()
   return {
-    key: `test:${tag}:${randomUUID()}`,
+    key: `test:${tag}:${id}`,
+    cause: { cause: `test:${tag}:${id}`.slice(0, 80), label: `Test ${tag}` },
     kind,
     level: 'caution',
     engineId: engine.id,
     componentId: null,
-    title: `${engine.serial} test finding ${tag}`,
+    title: `${engine.serial} test finding ${tag} ${id.slice(0, 8)}`,
     details: {
       engineSerial: engine.serial,
       engineTypeCode: 'KV8',
@@ -97,7 +88,7 @@ beforeAll(async () => {
 })
 
 describe('life levels alert exactly once each', () => {
-  it('sends one mail per level (warning, due, limit) to the supplier engineers and the team managers, and none on a rerun', async () => {
+  it('lists a part once per level (warning, due, limit) in one digest per recipient and run, mails "limit reached" at once too, and nothing on a rerun', async () => {
     const engine = await engineBySerial('KV8-1103') // Marlowe's, no part flagged in the demo
     const life = await computeFleetLife(db(), new Date())
     const e = life.engines.find((x) => x.id === engine.id)!
@@ -114,53 +105,64 @@ describe('life levels alert exactly once each', () => {
     expect(recipients).toContain(USERS.supplierEngineer)
     expect(recipients).toContain(USERS.managerA)
     expect(recipients).not.toContain(USERS.managerB)
+    const label = target.positionLabel ?? target.typeName
+    const group = target.category.toLowerCase()
 
     const levels = [
-      { fraction: ct.warningLevel + 0.03, word: 'warning', status: 'warning' },
-      { fraction: ct.dueLevel + 0.03, word: 'rebuild due', status: 'due' },
-      { fraction: 1.03, word: 'limit reached', status: 'over' },
+      { fraction: ct.warningLevel + 0.03, word: 'Warning', title: 'warning', status: 'warning', urgent: false },
+      { fraction: ct.dueLevel + 0.03, word: 'Rebuild due', title: 'rebuild due', status: 'due', urgent: false },
+      { fraction: 1.03, word: 'Do not run', title: 'limit reached', status: 'over', urgent: true },
     ]
-    const ourMails = async () => (await inbox()).filter((m) => m.subject.includes(target.serial))
-    await clearInbox()
+    const byRun: Mail[][] = []
     try {
       for (const level of levels) {
         const limitHours = Math.round((target.hours / level.fraction) * 1000) / 1000
         expect((await supplier.patch(`/api/component-types/${ct.id}`, { limitHours })).status).toBe(200)
         const part = (await computeFleetLife(db(), new Date())).parts.get(target.componentId)!
         expect(part.status).toBe(level.status)
+        await clearInbox()
         const run = await runLifeCheck(checkDeps())
         expect(run.outcome).toBe('ok')
         expect(run.alertsCreated).toBeGreaterThanOrEqual(1)
         await deliver()
+        const mails = await inbox()
+        byRun.push(mails)
+        for (const r of recipients) {
+          // One digest per person and run, however many engines and parts moved.
+          const digests = to(mails, r).filter(isDigest)
+          expect(digests, `${level.status} ${r}`).toHaveLength(1)
+          const text = digests[0]!.text
+          expect(text).toContain(`KV8-1103 (Marlowe Vane Racing) – ${BASE}/engines/${engine.id}`)
+          expect(text).toMatch(new RegExp(`\\[${level.word}\\] KV8-1103 ${group} – ${level.title}: `))
+          expect(text).toContain(`  - ${label} ${target.serial} – ${Math.round(level.fraction * 100)} % consumed – Running hours: `)
+          // "Do not run" also goes at once, one message for the engine.
+          const urgent = to(mails, r).filter((m) => isDoNotRun(m) && m.subject.includes('KV8-1103'))
+          expect(urgent, `${level.status} ${r}`).toHaveLength(level.urgent ? 1 : 0)
+        }
       }
-      const mails = await ourMails()
-      expect(mails).toHaveLength(3 * recipients.length)
-      expect(addressesOf(mails)).toEqual(recipients.flatMap((r) => [r, r, r]).sort())
-      for (const r of recipients) {
-        const subjects = mails.filter((m) => m.to.some((t) => t.address.toLowerCase() === r)).map((m) => m.subject)
-        expect(subjects.map((s) => s.match(/\((warning|rebuild due|limit reached)\)/)![1]).sort()).toEqual(['limit reached', 'rebuild due', 'warning'])
-      }
-      // Subject, bodies, link and caution.
-      const over = mails.find((m) => m.subject.includes('(limit reached)'))!
-      const label = (target.positionLabel ?? target.typeName).toLowerCase()
-      expect(over.subject).toMatch(new RegExp(`^\\[Crankledger\\] KV8-1103 ${label} ${target.serial} at 103 % \\(limit reached\\) – running hours$`))
-      expect(over.text).toContain(`${BASE}/engines/${engine.id}`)
-      expect(over.text).toContain('Governing limit: Running hours')
-      expect(over.text).toContain('Life consumed: 103 %')
+      const over = to(byRun[2]!, USERS.managerA).find((m) => isDoNotRun(m) && m.subject.includes('KV8-1103'))!
+      expect(over.subject).toMatch(new RegExp(`^\\[Crankledger\\] DO NOT RUN: KV8-1103 ${group} – limit reached: `))
+      expect(over.text).toContain(`Open the engine: ${BASE}/engines/${engine.id}`)
+      expect(over.text).toContain(`${target.serial} – 103 % consumed`)
       expect(over.text).toContain('never a substitute')
       expect(over.html).toContain(`href="${BASE}/engines/${engine.id}"`)
       expect(over.html).toContain('never a substitute')
+      const digest = to(byRun[2]!, USERS.managerA).find(isDigest)!
+      expect(digest.html).toContain(`href="${BASE}/alerts?engine=${engine.id}"`)
 
       // The same findings again: nothing new, nothing sent.
       const before = (await inbox()).length
       const rerun = await runLifeCheck(checkDeps())
       expect(rerun.outcome).toBe('ok')
       expect(rerun.alertsCreated).toBe(0)
+      expect(rerun.alertsUpdated).toBe(0)
       expect(rerun.mailsQueued).toBe(0)
       expect((await deliver()).sent).toBe(0)
       expect((await inbox()).length).toBe(before)
-      const alerts = await db()('alerts').where('component_id', target.componentId).where('kind', 'like', 'life-%')
+      // Each level once for the part, each in its engine's alert for the part group.
+      const alerts = await db()('alerts as a').join('alert_parts as p', 'p.alert_id', 'a.id').where('p.component_id', target.componentId).where('a.kind', 'like', 'life-%').select('a.level', 'a.cause', 'a.engine_id')
       expect(alerts.map((a: any) => a.level).sort()).toEqual(['due', 'over', 'warning'])
+      expect(alerts.every((a: any) => a.cause === `life:${target.category}` && a.engine_id === engine.id)).toBe(true)
     } finally {
       expect((await supplier.patch(`/api/component-types/${ct.id}`, { limitHours: originalLimit })).status).toBe(200)
     }
@@ -178,13 +180,40 @@ describe('life levels alert exactly once each', () => {
       const run = await runLifeCheck(checkDeps({ extraFindings: async () => [finding] }))
       expect(run.alertsCreated).toBe(1)
       await deliver()
-      const mails = (await inbox()).filter((m) => m.subject.includes(finding.title))
+      const mails = (await inbox()).filter((m) => m.text.includes(finding.title))
       const expected = (await expectedRecipients(engine.id)).filter((r) => r !== USERS.managerA)
       expect(addressesOf(mails)).toEqual(expected)
       const listed = (await managerA.get('/api/alerts?state=all')).body
       expect(listed.some((a: any) => a.title === finding.title)).toBe(true)
     } finally {
       await managerA.put('/api/me/alert-prefs', { email: { 'oil-caution': prefsBefore.kinds.find((k: any) => k.kind === 'oil-caution').email } })
+    }
+  })
+
+  it('lets a person keep the digest and switch off the urgent mail at once (or the reverse)', async () => {
+    const engine = await engineBySerial('KV8-1101')
+    const before = (await managerA.get('/api/me/alert-prefs')).body
+    expect([before.digest, before.immediate]).toEqual([true, true])
+    const bad = await managerA.put('/api/me/alert-prefs', { immediate: 'no' })
+    expect(bad.status).toBe(400)
+    expect(bad.body.message).toContain('immediate')
+    expect((await managerA.put('/api/me/alert-prefs', { immediate: false })).body).toMatchObject({ digest: true, immediate: false })
+    expect((await supplier.put('/api/me/alert-prefs', { digest: false })).body).toMatchObject({ digest: false, immediate: true })
+    try {
+      const finding = { ...extraFinding(engine, 'urgent-prefs', 'life-over'), level: 'over' }
+      await clearInbox()
+      expect((await runLifeCheck(checkDeps({ extraFindings: async () => [finding] }))).alertsCreated).toBe(1)
+      await deliver()
+      const mails = (await inbox()).filter((m) => m.text.includes(finding.title))
+      expect(to(mails, USERS.managerA).map((m) => isDigest(m))).toEqual([true])
+      expect(to(mails, USERS.supplierEngineer).map((m) => isDoNotRun(m))).toEqual([true])
+      // everyone else: both
+      for (const r of (await expectedRecipients(engine.id)).filter((x) => x !== USERS.managerA && x !== USERS.supplierEngineer)) {
+        expect(to(mails, r).map((m) => (isDigest(m) ? 'digest' : isDoNotRun(m) ? 'urgent' : m.subject)).sort(), r).toEqual(['digest', 'urgent'])
+      }
+    } finally {
+      await managerA.put('/api/me/alert-prefs', { immediate: true })
+      await supplier.put('/api/me/alert-prefs', { digest: true })
     }
   })
 })
@@ -205,8 +234,8 @@ describe('delivery while the mail server is down', () => {
     expect(first.sent).toBe(0)
     expect(first.serverDown).toBe(true)
 
-    const alert = await db()('alerts').where('alert_key', finding.key).first()
-    const rows = async () => db()('mail_outbox').where('alert_id', alert.id).orderBy('id')
+    const alert = await alertOf(finding)
+    const rows = async () => digestRows(alert.id)
     const pending = await rows()
     expect(pending).toHaveLength(recipients.length)
     expect(pending.every((r: any) => r.state === 'pending')).toBe(true)
@@ -224,7 +253,7 @@ describe('delivery while the mail server is down', () => {
       expect(back.sent).toBeGreaterThanOrEqual(recipients.length)
       const again = await deliver(smtp(smtpPort), { now: () => new Date(Date.now() + 3600_000) })
       expect(again.sent).toBe(0)
-      const got = (await inbox(`http://127.0.0.1:${webPort}`)).filter((m) => m.subject.includes(finding.title))
+      const got = (await inbox(`http://127.0.0.1:${webPort}`)).filter((m) => m.text.includes(finding.title))
       expect(addressesOf(got)).toEqual(recipients)
       expect((await rows()).every((r: any) => r.state === 'sent' && r.sent_at)).toBe(true)
     } finally {
@@ -237,21 +266,20 @@ describe('delivery while the mail server is down', () => {
     const engine = await engineBySerial('KV8-1201')
     const finding = extraFinding(engine, 'undeliverable')
     await runLifeCheck(checkDeps({ extraFindings: async () => [finding] }))
-    const alert = await db()('alerts').where('alert_key', finding.key).first()
+    const alert = await alertOf(finding)
     let clock = Date.now()
     for (let i = 0; i < 40; i++) {
       clock += 61 * 60_000 // past the longest backoff
       await deliver(down, { now: () => new Date(clock), maxAttempts: 3 })
-      const left = await db()('mail_outbox').where('alert_id', alert.id).where('state', 'pending').count({ n: '*' }).first()
-      if (Number(left!.n) === 0) break
+      if ((await digestRows(alert.id)).every((r: any) => r.state !== 'pending')) break
     }
-    const rows = await db()('mail_outbox').where('alert_id', alert.id)
+    const rows = await digestRows(alert.id)
     expect(rows.length).toBeGreaterThan(0)
     expect(rows.every((r: any) => r.state === 'failed' && r.attempts === 3)).toBe(true)
     const view = await admin.get('/api/admin/outbox?state=failed')
     expect(view.status).toBe(200)
     expect(view.body.counts.failed).toBeGreaterThanOrEqual(rows.length)
-    expect(view.body.mails.filter((m: any) => m.alertId === Number(alert.id)).map((m: any) => m.state)).toEqual(rows.map(() => 'failed'))
+    expect(view.body.mails.filter((m: any) => m.alertId === Number(alert.id)).map((m: any) => [m.kind, m.state])).toEqual(rows.map(() => ['digest', 'failed']))
     expect((await managerA.get('/api/admin/outbox')).status).toBe(403)
   })
 })
@@ -270,10 +298,14 @@ describe('two runs at the same moment', () => {
       expect(runs.filter((r) => r.outcome === 'ok').length).toBeGreaterThanOrEqual(1)
       expect(runs.reduce((t, r) => t + r.alertsCreated, 0)).toBe(3)
       const keys = findings.map((f) => f.key)
-      expect(Number((await db()('alerts').whereIn('alert_key', keys).count({ n: '*' }).first())!.n)).toBe(3)
+      const parts = await db()('alert_parts').whereIn('item_key', keys)
+      expect(parts).toHaveLength(3)
+      expect(new Set(parts.map((p: any) => p.alert_id)).size).toBe(3)
       await Promise.all([deliver(), deliver()])
-      const mails = (await inbox()).filter((m) => findings.some((f) => m.subject.includes(f.title)))
-      expect(mails).toHaveLength(3 * recipients.length)
+      const mails = (await inbox()).filter((m) => findings.some((f) => m.text.includes(f.title)))
+      // Each finding reaches each person exactly once; under the lock, all three in one digest.
+      for (const r of recipients) for (const f of findings) expect(to(mails, r).filter((m) => m.text.includes(f.title)), `${r} ${f.title}`).toHaveLength(1)
+      if (lock !== noLock) expect(mails).toHaveLength(recipients.length)
     }
   })
 
@@ -299,19 +331,24 @@ describe('alerts stay inside the team', () => {
     await clearInbox()
     await runLifeCheck(checkDeps({ extraFindings: async () => [finding] }))
     await deliver()
-    const mails = (await inbox()).filter((m) => m.subject.includes(finding.title))
-    const to = addressesOf(mails)
-    expect(to).toContain(USERS.managerA)
-    expect(to).not.toContain(USERS.managerB)
-    expect(to).not.toContain(USERS.managerC)
-    expect(to.every((a) => a.endsWith('@keelbrook.test') || a.endsWith('@marlowe.test'))).toBe(true)
+    const mails = (await inbox()).filter((m) => m.text.includes(finding.title))
+    const sentTo = addressesOf(mails)
+    expect(sentTo).toContain(USERS.managerA)
+    expect(sentTo).not.toContain(USERS.managerB)
+    expect(sentTo).not.toContain(USERS.managerC)
+    expect(sentTo.every((a) => a.endsWith('@keelbrook.test') || a.endsWith('@marlowe.test'))).toBe(true)
 
-    const alert = await db()('alerts').where('alert_key', finding.key).first()
+    const alert = await alertOf(finding)
     const listB = await managerB.get('/api/alerts?state=all&limit=500')
     expect(listB.status).toBe(200)
     const tidewater = await db()('organisations').where('name', 'Tidewater Apex Motorsport').first()
     expect(listB.body.every((a: any) => a.teamId === tidewater.id)).toBe(true)
     expect(JSON.stringify(listB.body)).not.toContain('KV8-1101')
+    const groupsB = await managerB.get(`/api/alerts/engines?state=all&engineId=${engine.id}`)
+    expect(groupsB.status).toBe(200)
+    expect(groupsB.body).toEqual([])
+    expect((await managerB.get('/api/alerts/engines?state=all&limit=500')).body.every((g: any) => g.alerts.every((a: any) => a.teamId === tidewater.id))).toBe(true)
+    expect((await managerB.post(`/api/alerts/engines/${engine.id}/ack`, { comment: 'not mine' })).status).toBe(404)
     expect((await managerB.post(`/api/alerts/${alert.id}/ack`, { comment: 'not mine' })).status).toBe(404)
     expect(await db()('alert_acks').where('alert_id', alert.id).first()).toBeUndefined()
 

@@ -181,7 +181,7 @@ describe('one verdict per over-rev event', () => {
     expect(row.overRevFlags.immediateInspection).toBe(true)
     await lifeCheck()
     // one immediate-inspection alert per part whose type demands it for this band (the four rods and the valve springs)
-    const flagged = (await db()('alerts').where({ engine_id: engineId, kind: 'over-rev' }).pluck('component_id')).sort()
+    const flagged = (await db()('alerts as a').join('alert_parts as p', 'p.alert_id', 'a.id').where({ 'a.engine_id': engineId, 'a.kind': 'over-rev' }).pluck('p.component_id')).sort()
     expect(flagged).toEqual(expect.arrayContaining(rods.map((r: any) => r.id)))
   })
 })

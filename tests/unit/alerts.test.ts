@@ -1,10 +1,11 @@
-// Alert findings, mail text, retry backoff and schedule validation: pure parts of the alert jobs.
+// Alert findings and their grouping, mail text, retry backoff and schedule validation: pure parts of the alert jobs.
 import { describe, expect, it } from 'vitest'
-import { renderAlertMail } from '../../tasks/alert-mail'
+import { renderDigestMail, renderUrgentMail, type MailAlert } from '../../tasks/alert-mail'
 import { backoffMinutes, MAX_BACKOFF_MINUTES } from '../../tasks/deliver-outbox'
-import { lifeFindings, type FleetLifeView } from '../../tasks/life-check'
+import { groupFindings, lifeFindings, type FleetLifeView } from '../../tasks/life-check'
 import { scheduleProblem, assertValidSchedule } from '../../tasks/schedule'
-import { emailWanted } from '#shared/schemas/alerts'
+import { deliveryWanted, emailWanted, mailModes } from '#shared/schemas/alerts'
+import { describeAlertGroup } from '#shared/domain/alert-groups'
 
 function makePart(over: Record<string, unknown> = {}): any {
   return {
@@ -59,20 +60,85 @@ describe('life findings', () => {
   })
 })
 
+describe('one alert per engine and cause', () => {
+  // Three band-C over-revs on one V8: the eight rods and the valve springs demand an immediate inspection,
+  // and each is over its band-C budget (one event allowed), the crank within its own (two allowed).
+  const rods = Array.from({ length: 8 }, (_, i) =>
+    makePart({
+      componentId: 100 + i, serial: `KV8ROD-40${10 + i}`, position: `rod-${i + 1}`, positionLabel: `Conrod ${i + 1}`, category: 'Crank drive', status: 'over', fraction: 3,
+      governing: { kind: 'over-rev', label: 'Over-revs in band C', unit: 'events', used: 3, limit: 1, fraction: 3, left: -2 }, immediateInspection: true,
+    }),
+  )
+  const springs = makePart({
+    componentId: 200, serial: 'KV8VSP-2001', position: 'valve-springs', positionLabel: 'Valve springs', typeName: 'Valve spring set', category: 'Valve train', status: 'over', fraction: 3,
+    governing: { kind: 'over-rev', label: 'Over-revs in band C', unit: 'events', used: 3, limit: 1, fraction: 3, left: -2 }, immediateInspection: true,
+  })
+  const engine = makeEngine({ parts: [...rods, springs] })
+  const partCycles = { installationOf: new Map([...rods, springs].map((p, i) => [p.componentId, 500 + i])), inspectionClearedAt: new Map<number, string | null>() }
+
+  it('turns eighteen part findings into three alerts: the over-rev verdict and each part group\'s limit', () => {
+    const findings = lifeFindings(lifeOf(engine), partCycles)
+    expect(findings).toHaveLength(18)
+    const groups = groupFindings(findings)
+    expect(groups.map((g) => [g.cause, g.level, g.items.length])).toEqual([
+      ['life:Crank drive', 'over', 8],
+      ['over-rev', 'inspection', 9],
+      ['life:Valve train', 'over', 1],
+    ])
+    // each finding keeps its own key, so a part is never recorded twice
+    expect(groups[1]!.items[0]!.key).toBe('component:100:over-rev:inspection:i500:0')
+  })
+
+  it('names the group, the count and the worst fraction; a single part by name', () => {
+    const parts = rods.map((p: any) => ({ serial: p.serial, name: p.typeName, position: p.positionLabel, fraction: p.fraction, governingLabel: 'Over-revs in band C' }))
+    const life = describeAlertGroup({ kind: 'life-over', level: 'over', engineSerial: 'KV8-1101', causeLabel: 'Crank drive', single: { title: 'x', message: 'x' } }, parts)
+    expect(life.title).toBe('KV8-1101 crank drive – limit reached: 8 parts, worst 300 %')
+    // the parts themselves are listed beside the message (page) or under it (mail)
+    expect(life.message).toBe('8 parts of the crank drive group in KV8-1101 have reached a life limit (over-revs in band c): the engine must not run until they are replaced or released by the supplier.')
+    const one = describeAlertGroup({ kind: 'life-due', level: 'due', engineSerial: 'KV8-1101', causeLabel: 'Crank drive', single: { title: 'x', message: 'x' } }, [{ ...parts[0]!, fraction: 0.92, governingLabel: 'Running hours' }])
+    expect(one.title).toBe('KV8-1101 crank drive – rebuild due: conrod 1 KV8ROD-4010 at 92 %')
+    const rev = describeAlertGroup({ kind: 'over-rev', level: 'inspection', engineSerial: 'KV8-1101', causeLabel: 'Over-rev', single: { title: 'x', message: 'x' } }, parts)
+    expect(rev.title).toBe('KV8-1101 over-rev – immediate inspection of 8 parts')
+    expect(rev.message).toBe('KV8-1101 has logged an over-rev in the band that demands an immediate inspection of 8 parts: do not run the engine until they have been inspected and signed off.')
+    // an alert about no part (forecast, oil) keeps the finding's own words
+    expect(describeAlertGroup({ kind: 'forecast', level: 'forecast', engineSerial: 'KV8-1101', causeLabel: 'Forecast for Round 5', single: { title: 'T', message: 'M' } }, [])).toEqual({ title: 'T', message: 'M' })
+  })
+})
+
 describe('alert mail', () => {
-  it('names engine, part, governing limit, consumed fraction, a link and the caution, and escapes HTML', () => {
-    const m = renderAlertMail('KV8-1101 conrod KV8ROD-4003 at 92 % (rebuild due) – running hours', {
-      engineSerial: 'KV8-1101', engineTypeCode: 'KV8', teamName: 'A & B <Racing>', partSerial: 'KV8ROD-4003', partName: 'Connecting rod', position: 'Conrod',
-      status: 'rebuild due', fraction: 0.92, governing: { label: 'Running hours', used: 36.8, limit: 40, unit: 'h', fraction: 0.92 }, event: { eventId: 1, name: 'Round 5', startsAt: '2026-12-20T08:00:00.000Z' }, message: 'Due.',
-    }, 3, 'https://ledger.example/')
-    expect(m.subject).toBe('[Crankledger] KV8-1101 conrod KV8ROD-4003 at 92 % (rebuild due) – running hours')
-    expect(m.text).toContain('Governing limit: Running hours: 36.8 of 40.0 h')
-    expect(m.text).toContain('Life consumed: 92 %')
-    expect(m.text).toContain('Forecast event: Round 5 (2026-12-20)')
-    expect(m.text).toContain('https://ledger.example/engines/3')
+  const over: MailAlert = {
+    alertId: 41, engineId: 3, engineSerial: 'KV8-1101', teamName: 'A & B <Racing>', level: 'over', title: 'KV8-1101 crank drive – limit reached: 2 parts, worst 103 %',
+    message: 'Two rods at their limit.', change: 'new', partsAdded: 2, event: null,
+    parts: [
+      { serial: 'KV8ROD-4003', name: 'Connecting rod', position: 'Conrod 3', fraction: 1.03, governing: { label: 'Running hours', used: 41.2, limit: 40, unit: 'h', fraction: 1.03 } },
+      { serial: 'KV8ROD-4004', name: 'Connecting rod', position: 'Conrod 4', fraction: 1.01, governing: { label: 'Running hours', used: 40.4, limit: 40, unit: 'h', fraction: 1.01 } },
+    ],
+  }
+  const forecast: MailAlert = {
+    alertId: 42, engineId: 5, engineSerial: 'KV8-1102', teamName: null, level: 'forecast', title: 'KV8-1102 forecast to reach a limit by Round 5', message: 'Rebuild before Round 5.',
+    change: 'added', partsAdded: 1, event: { eventId: 1, name: 'Round 5', startsAt: '2026-12-20T08:00:00.000Z' }, parts: [],
+  }
+
+  it('digests every change for one person by engine, most severe first, with the parts, links and the caution, and escapes HTML', () => {
+    const m = renderDigestMail([forecast, over], 'https://ledger.example/')
+    expect(m.subject).toBe('[Crankledger] Alert digest: 2 alerts on KV8-1101, KV8-1102')
+    expect(m.text.indexOf('KV8-1101 (A & B <Racing>) – https://ledger.example/engines/3')).toBeLessThan(m.text.indexOf('KV8-1102 – https://ledger.example/engines/5'))
+    expect(m.text).toContain('[Do not run] KV8-1101 crank drive – limit reached: 2 parts, worst 103 % (New)')
+    expect(m.text).toContain('  - Conrod 3 KV8ROD-4003 – 103 % consumed – Running hours: 41.2 of 40.0 h')
+    expect(m.text).toContain('[Forecast] KV8-1102 forecast to reach a limit by Round 5 (1 more part)')
+    expect(m.text).toContain('  Event: Round 5 (2026-12-20)')
+    expect(m.text).toContain('Open: https://ledger.example/alerts?engine=3')
     expect(m.text).toContain('never a substitute')
+    expect(m.html).toContain('href="https://ledger.example/alerts?engine=3"')
     expect(m.html).toContain('A &amp; B &lt;Racing&gt;')
     expect(m.html).not.toContain('<Racing>')
+  })
+
+  it('sends "do not run" at once with the level first in the subject', () => {
+    const m = renderUrgentMail([over], 'https://ledger.example')
+    expect(m.subject).toBe('[Crankledger] DO NOT RUN: KV8-1101 crank drive – limit reached: 2 parts, worst 103 %')
+    expect(m.text).toContain('Open the engine: https://ledger.example/engines/3')
+    expect(m.text).toContain('never a substitute')
   })
 })
 
@@ -88,6 +154,15 @@ describe('alert preferences', () => {
     expect(emailWanted(null, 'life-due')).toBe(true)
     expect(emailWanted({ email: { 'life-due': false } }, 'life-due')).toBe(false)
     expect(emailWanted({ email: { 'life-due': false } }, 'life-over')).toBe(true)
+  })
+  it('mails a digest and the urgent levels at once unless switched off', () => {
+    expect(mailModes(null)).toEqual({ digest: true, immediate: true })
+    expect(deliveryWanted(null, 'life-over', 'over')).toEqual({ digest: true, immediate: true })
+    expect(deliveryWanted(null, 'over-rev', 'inspection')).toEqual({ digest: true, immediate: true })
+    expect(deliveryWanted(null, 'life-due', 'due')).toEqual({ digest: true, immediate: false })
+    expect(deliveryWanted({ immediate: false }, 'life-over', 'over')).toEqual({ digest: true, immediate: false })
+    expect(deliveryWanted({ digest: false }, 'life-over', 'over')).toEqual({ digest: false, immediate: true })
+    expect(deliveryWanted({ email: { 'life-over': false } }, 'life-over', 'over')).toEqual({ digest: false, immediate: false })
   })
 })
 
