@@ -1,6 +1,6 @@
 // Finding sessions and correcting them: the list's filters, voiding and restoring.
 import { z } from 'zod'
-import { multiline } from '../text'
+import { line } from '../text'
 import { SESSION_KINDS } from './fleet'
 
 const optionalId = z.union([z.literal('').transform(() => undefined), z.coerce.number().int().positive()]).optional()
@@ -28,7 +28,7 @@ export const SessionListQuerySchema = z
 export type SessionListQuery = z.infer<typeof SessionListQuerySchema>
 
 export const VoidSessionSchema = z.object({
-  reason: multiline({ error: 'a reason is needed: say why this session does not count' })
+  reason: line({ error: 'a reason is needed: say why this session does not count' })
     .trim()
     .min(3, 'a reason is needed: say why this session does not count (at least 3 characters)')
     .max(500, 'must be at most 500 characters'),
@@ -36,6 +36,6 @@ export const VoidSessionSchema = z.object({
 export type VoidSessionInput = z.infer<typeof VoidSessionSchema>
 
 export const RestoreSessionSchema = z.object({
-  reason: multiline().trim().max(500, 'must be at most 500 characters').default(''),
+  reason: line().trim().max(500, 'must be at most 500 characters').default(''),
 })
 export type RestoreSessionInput = z.infer<typeof RestoreSessionSchema>
