@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { launch, screenshot, signedInPage, LAPTOP, TABLET } from './browser'
 import { signIn, USERS } from '../e2e/helpers'
-import { freshEngine, type FreshEngine } from '../e2e/fresh-engine'
+import { freshEngine, removeFreshEngines, type FreshEngine } from '../e2e/fresh-engine'
 
 const HOUR = 3_600_000
 let browser: Browser
@@ -28,6 +28,7 @@ beforeAll(async () => {
 })
 afterAll(async () => {
   await browser?.close()
+  await removeFreshEngines([engine])
 })
 
 describe('sessions in Chromium', () => {

@@ -38,3 +38,25 @@ export async function freshEngine(prefix: string, opts: { typeCode?: string; tea
   })
   return { id: engineId, serial, engineTypeId: type.id, partIds, crankshaftId: crankshaftId || partIds[0]! }
 }
+
+/**
+ * Removes what `freshEngine` made and the sessions logged on it (audit rows stay: the log is
+ * append-only), so later files see the demo fleet as seeded (other files count its engines).
+ */
+export async function removeFreshEngines(engines: (FreshEngine | undefined)[], eventIds: number[] = []) {
+  const ids = engines.filter((e): e is FreshEngine => Boolean(e)).map((e) => e.id)
+  if (!ids.length && !eventIds.length) return
+  await db().transaction(async (trx) => {
+    const alertIds = await trx('alerts').whereIn('engine_id', ids).pluck('id')
+    if (alertIds.length) await trx('mail_outbox').whereIn('alert_id', alertIds).delete()
+    await trx('alerts').whereIn('engine_id', ids).delete()
+    await trx('sessions').whereIn('engine_id', ids).delete()
+    await trx('event_plans').whereIn('engine_id', ids).delete()
+    const componentIds = await trx('installations').whereIn('engine_id', ids).pluck('component_id')
+    await trx('installations').whereIn('engine_id', ids).delete()
+    await trx('components').whereIn('id', componentIds).delete()
+    await trx('engines').whereIn('id', ids).delete()
+    if (eventIds.length) await trx('events').whereIn('id', eventIds).delete()
+    await trx('life_revision').where('id', 1).increment('revision', 1)
+  })
+}

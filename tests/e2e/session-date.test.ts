@@ -2,9 +2,9 @@
 // outside the event needs an explicit confirmation (409 until confirmDate is sent), weeks away or
 // in the future is refused (400 naming startedAt), an event of another series is refused (400
 // naming eventId). The day boundaries are common practice (shared/domain/session-date.ts).
-import { beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { BASE, db, signIn, USERS, type Client } from './helpers'
-import { freshEngine, type FreshEngine } from './fresh-engine'
+import { freshEngine, removeFreshEngines, type FreshEngine } from './fresh-engine'
 
 const DAY = 86_400_000
 const BANDS = 21 // KV8-45: (9,200 + 1,000) rpm in 500 rpm bands, rounded up
@@ -34,6 +34,10 @@ beforeAll(async () => {
   touringEventId = (await db()('events').where('series', 'Coastline Touring Cup').orderBy('starts_at').first()).id
 })
 
+afterAll(async () => {
+  await removeFreshEngines([engine], [gtEvent?.id].filter(Boolean) as number[])
+})
+
 describe('the session date against its event', () => {
   it('stores a session inside the event, or within a day of it, without asking', async () => {
     expect((await post(Date.parse(gtEvent.startsAt) + 3 * 3_600_000)).status).toBe(201)
@@ -52,7 +56,8 @@ describe('the session date against its event', () => {
     const confirmed = await post(at, { confirmDate: true })
     expect(confirmed.status, JSON.stringify(confirmed.body)).toBe(201)
     const row = await db()('audit_log').where({ entity: 'session', entity_id: String(confirmed.body.id), action: 'create' }).first()
-    expect(JSON.parse(row.after_value).dateConfirmed).toBe(true)
+    const after = typeof row.after_value === 'string' ? JSON.parse(row.after_value) : row.after_value
+    expect(after.dateConfirmed).toBe(true)
   })
 
   it('refuses a session ten days after the event, even when confirmed, naming startedAt', async () => {

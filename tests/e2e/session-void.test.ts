@@ -1,9 +1,9 @@
 // Voiding a session filed in error and restoring it, on an engine of this file's own: every figure
 // that counts sessions (board, part life, over-rev counts, forecast) moves back and forward, both
 // changes are audited, and only the team's race engineer or the supplier may do it.
-import { beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { BASE, db, signIn, USERS, type Client } from './helpers'
-import { freshEngine, type FreshEngine } from './fresh-engine'
+import { freshEngine, removeFreshEngines, type FreshEngine } from './fresh-engine'
 
 // KV8-45 (demo): rev limit 9,200 rpm in 500 rpm bands: (9,200 + 1,000) / 500 rounded up = 21 bands.
 const BANDS = 21
@@ -49,6 +49,10 @@ beforeAll(async () => {
   const a = await race.post('/api/sessions', { engineId: engine.id, eventId: null, kind: 'test', startedAt: new Date(Date.now() - 5 * HOUR).toISOString(), runningSeconds: 3600, distanceKm: 150, histogram: histogram(3600, 16) })
   expect(a.status, JSON.stringify(a.body)).toBe(201)
   first = a.body.id
+})
+
+afterAll(async () => {
+  await removeFreshEngines([engine])
 })
 
 describe('voiding a session', () => {
