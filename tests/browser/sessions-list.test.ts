@@ -39,6 +39,8 @@ describe('sessions in Chromium', () => {
     expect(await links.count()).toBe(2)
     // Newest first: the live session, then the voided one, marked as such
     expect(await page.locator('[data-test=sessions-table] tr[data-voided=true] [data-test=voided-tag]').count()).toBe(1)
+    await page.locator('[data-test=sessions-table]').scrollIntoViewIfNeeded()
+    await screenshot(page, 'sessions-engine-page-laptop')
     await links.first().click()
     await page.waitForURL(`**/sessions/${ids[1]}`)
     await page.locator('[data-test=cost-table]').waitFor()
