@@ -16,6 +16,8 @@ import * as signInAddresses from './20261203_02_b_sign_in_addresses'
 import * as sessionFileScope from './20261203_02_c_session_file_scope'
 import * as alertGroups from './20261204_01_a_alert_groups'
 import * as alertGroupsFold from './20261204_01_b_alert_groups_fold'
+import * as sessionVoid from './20261204_02_a_session_void'
+import * as sessionLiveFile from './20261204_02_b_session_live_file'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -36,6 +38,8 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203_02_c_session_file_scope': sessionFileScope,
   '20261204_01_a_alert_groups': alertGroups,
   '20261204_01_b_alert_groups_fold': alertGroupsFold,
+  '20261204_02_a_session_void': sessionVoid,
+  '20261204_02_b_session_live_file': sessionLiveFile,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

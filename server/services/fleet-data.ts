@@ -147,6 +147,7 @@ export function toSessionDto(r: any): SessionDto {
     source: r.source,
     fileName: r.file_name ?? null,
     hasFile: Boolean(r.file_key),
+    voided: r.voided_at ? { at: iso(r.voided_at)!, byName: r.voided_by_name ?? null, reason: r.void_reason ?? '' } : null,
   }
 }
 

@@ -215,6 +215,8 @@ function engineLife(fleet: FleetIndex, usageOf: UsageOf, e: any, parts: Map<numb
     totalHours: totalSeconds / 3600,
     hoursSinceRebuild: sinceRebuild / 3600,
     sessions: engineSessions.length,
+    // time-ordered (session-usage), so the last one is the latest
+    lastSession: engineSessions.length ? { id: engineSessions[engineSessions.length - 1]!.sessionId, startedAt: engineSessions[engineSessions.length - 1]!.at } : null,
     worst: {
       fraction: worstPart?.fraction ?? 0,
       status,

@@ -24,6 +24,8 @@ export interface ImportMeta {
   eventId: number | null
   kind: 'practice' | 'qualifying' | 'race' | 'test' | 'bench'
   startedAt: string
+  /** files a session a few days outside its event's dates (see shared/domain/session-date.ts) */
+  confirmDate?: boolean
   laps: number | null
   fileName: string
   mapping: LoggerMapping
@@ -177,13 +179,13 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
     return await db.transaction(async (trx) => {
       // A duplicate is looked for only among the sessions this user may see, and named only then.
       // Another team may hold the same file (a shared test): that is neither refused nor hinted at.
-      const existing = await scopeQuery(trx('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('s.file_sha256', result.sha256), actor, { supplier: 'e.supplier_id', team: 's.team_id' })
+      const existing = await scopeQuery(trx('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('s.file_sha256', result.sha256).whereNull('s.voided_at'), actor, { supplier: 'e.supplier_id', team: 's.team_id' })
         .orderBy('s.id')
         .first('s.id', 's.started_at', 's.kind', 'e.serial')
       if (existing) {
         conflict(`This file was already imported as session ${existing.id} (${existing.kind}, ${existing.serial}, ${new Date(existing.started_at).toISOString().slice(0, 16).replace('T', ' ')} UTC)`, { sessionId: existing.id })
       }
-      const input = { engineId: meta.engineId, eventId: meta.eventId, kind: meta.kind, startedAt: meta.startedAt, runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, histogram: f.histogram, overRevs: f.overRevs }
+      const input = { engineId: meta.engineId, eventId: meta.eventId, kind: meta.kind, startedAt: meta.startedAt, runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, histogram: f.histogram, overRevs: f.overRevs, confirmDate: meta.confirmDate ?? false }
       const { engine: locked, type: t } = await checkSession(trx, actor, input, { exactBands: false })
       await putFile(fileKey, compressed)
       stored = true

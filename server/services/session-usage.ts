@@ -14,13 +14,15 @@ export type SessionRow = ReturnType<typeof toEngineSession>
 const COLUMNS = ['s.id', 's.engine_id', 's.event_id', 's.started_at', 's.running_seconds', 's.distance_km', 's.histogram', 's.over_revs', 's.band_width_rpm', 's.eq_cache']
 const FILL_CHUNK = 500
 
-/** Sessions matching `where` (on alias s), in time order, each exact session with every pair its engine type needs. */
+/** Sessions that count (not voided) matching `where` (on alias s), in time order, each exact session with every pair its engine type needs. */
 export async function loadSessionUsage(db: Db, where: (qb: Knex.QueryBuilder) => void = () => {}): Promise<SessionRow[]> {
   const qb = db('sessions as s')
     .join('engines as e', 'e.id', 's.engine_id')
     .join('engine_types as et', 'et.id', 'e.engine_type_id')
     .select(COLUMNS)
     .select(db.raw('(s.rpm_moments IS NOT NULL) AS exact'), 'et.reference_rpm', 'e.supplier_id')
+    // A voided session counts nowhere: life, board, forecasts, part figures and the alerts' check all read here.
+    .whereNull('s.voided_at')
     .orderBy(['s.started_at', 's.id'])
   where(qb)
   const rows = await qb

@@ -11,7 +11,8 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { bumpLifeRevision, lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toEngineSession, toSessionDto } from './fleet-data'
 import { canSee } from '../utils/guard'
-import { json } from '../utils/db'
+import { iso, json } from '../utils/db'
+import { checkSessionDate, type EventDates } from '#shared/domain/session-date'
 import { engineRowFor } from './engine-rows'
 import { announceLifeChanged } from '../utils/life-events'
 
@@ -41,10 +42,13 @@ export async function checkSession(trx: Knex.Transaction, actor: Actor, input: M
   if (engine.status === 'teardown') conflict(`${engine.serial} is in teardown: sessions can be logged again after its rebuild is signed off`)
   if (engine.status === 'retired') conflict(`${engine.serial} is retired`)
   const [type] = await loadEngineTypes(trx, (qb) => qb.where('id', engine.engine_type_id))
+  let eventDates: EventDates | null = null
   if (input.eventId !== null) {
     const ev = await trx('events').where('id', input.eventId).first()
     if (!ev || ev.supplier_id !== engine.supplier_id) notFound('Event')
+    // An engine type runs in one series: an event of another series cannot be right.
     if (ev.series !== type!.series) badRequest(`Invalid input: eventId: ${ev.name} belongs to the ${ev.series}, not to ${type!.code} engines`)
+    eventDates = { name: ev.name, startsAt: iso(ev.starts_at)!, endsAt: iso(ev.ends_at)! }
   }
   const bands = expectedBands(type!)
   if (opts.exactBands ? input.histogram.length !== bands : input.histogram.length > bands + 40) {
@@ -59,6 +63,9 @@ export async function checkSession(trx: Knex.Transaction, actor: Actor, input: M
     if (!bandIds.has(o.bandId)) badRequest(`Invalid input: overRevs.${i}.bandId: ${type!.code} has no over-rev band "${o.bandId}" (bands: ${[...bandIds].join(', ')})`)
   })
   if (Date.parse(input.startedAt) < new Date(engine.built_at).getTime()) badRequest('Invalid input: startedAt: before the engine was built')
+  const date = checkSessionDate(input.startedAt, eventDates, new Date())
+  if (date.verdict === 'refuse') badRequest(`Invalid input: ${date.message}`)
+  if (date.verdict === 'confirm' && !input.confirmDate) conflict(date.message, { field: 'startedAt', confirmField: 'confirmDate', daysOutside: date.daysOutside })
   return { engine, type: type! }
 }
 
@@ -94,7 +101,7 @@ export async function insertSession(trx: Knex.Transaction, actor: Actor, input: 
     entity: 'session',
     entityId: id!,
     action: 'create',
-    after: { engineId: engine.id, eventId: input.eventId, kind: input.kind, startedAt: input.startedAt, runningSeconds: input.runningSeconds, distanceKm: input.distanceKm, source: extras.source ?? 'manual' },
+    after: { engineId: engine.id, eventId: input.eventId, kind: input.kind, startedAt: input.startedAt, runningSeconds: input.runningSeconds, distanceKm: input.distanceKm, source: extras.source ?? 'manual', dateConfirmed: input.confirmDate || undefined },
   })
   await bumpLifeRevision(trx)
   return id!
@@ -110,8 +117,9 @@ export async function sessionById(db: Knex | Knex.Transaction, id: number) {
   const row = await db('sessions as s')
     .join('engines as e', 'e.id', 's.engine_id')
     .leftJoin('events as ev', 'ev.id', 's.event_id')
+    .leftJoin('users as vu', 'vu.id', 's.voided_by')
     .where('s.id', id)
-    .first('s.*', 'e.serial as engine_serial', 'e.supplier_id', 'ev.name as event_name')
+    .first('s.*', 'e.serial as engine_serial', 'e.supplier_id', 'ev.name as event_name', 'vu.name as voided_by_name')
   return row
 }
 

@@ -128,6 +128,8 @@ export const ManualSessionSchema = z.object({
   distanceKm: z.number().min(0, 'must not be negative').max(10000).default(0),
   histogram: z.array(z.number().min(0, 'must not be negative').max(48 * 3600)).min(1).max(200),
   overRevs: z.array(OverRevEventSchema).max(500).default([]),
+  /** true files a session whose start lies a few days outside its event's dates (shared/domain/session-date.ts) */
+  confirmDate: z.boolean().default(false),
 })
 export type ManualSessionInput = z.infer<typeof ManualSessionSchema>
 

@@ -9,6 +9,7 @@ export const ImportQuerySchema = z.object({
   eventId: z.union([z.literal('').transform(() => null), z.coerce.number().int().positive()]).nullable().default(null),
   kind: z.enum(SESSION_KINDS),
   startedAt: z.iso.datetime({ offset: true, error: 'must be a date-time such as 2026-11-28T14:00:00Z' }),
+  confirmDate: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
   laps: z.union([z.literal('').transform(() => null), z.coerce.number().int().min(0).max(2000)]).nullable().default(null),
   fileName: line().trim().min(1).max(255).default('logger.csv'),
   mapping: line()

@@ -120,6 +120,8 @@ export interface EngineSummaryDto {
   totalHours: number
   hoursSinceRebuild: number
   sessions: number
+  /** the latest session that counts (voided ones do not) */
+  lastSession: { id: number; startedAt: string } | null
   worst: { fraction: number; status: LifeStatus; governing: LimitMeasure | null; serial: string | null; position: string | null; typeName: string | null }
   groups: GroupLifeDto[]
   overRevFlags: { immediateInspection: boolean; events: number }
@@ -161,6 +163,41 @@ export interface SessionDto {
   fileName: string | null
   /** the raw file is kept, so the session can be read again */
   hasFile: boolean
+  /** a voided session counts nowhere (life, board, forecasts, alerts) until it is restored */
+  voided: SessionVoidDto | null
+}
+
+export interface SessionVoidDto {
+  at: string
+  byName: string | null
+  reason: string
+}
+
+/** One row of the sessions list (no histogram or trace details). */
+export interface SessionListItemDto {
+  id: number
+  engineId: number
+  engineSerial: string
+  engineTypeCode: string
+  teamName: string | null
+  eventId: number | null
+  eventName: string | null
+  kind: SessionDto['kind']
+  startedAt: string
+  runningSeconds: number
+  distanceKm: number
+  maxRpm: number | null
+  overRevCount: number
+  source: 'manual' | 'logger'
+  fileName: string | null
+  voided: SessionVoidDto | null
+}
+
+export interface SessionListDto {
+  items: SessionListItemDto[]
+  total: number
+  page: number
+  pageSize: number
 }
 
 export interface EventDto {

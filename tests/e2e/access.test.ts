@@ -65,6 +65,7 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/parts/[id]/wear': ALL,
   '/api/parts': ALL,
   '/api/sessions/[id]': ALL,
+  '/api/sessions': ALL,
   '/api/teardowns/findings': TEARDOWN,
   '/api/teardowns': ALL,
   '/api/users': ['admin', 'team_manager'],
@@ -159,6 +160,20 @@ describe('another team cannot change team A\'s records', () => {
     for (const other of ['otherManager', 'otherRace'] as const) {
       const res = await clients[other]!.request(r.method, concrete(r.path), r.method === 'DELETE' ? undefined : {})
       expect([400, 403, 404, 409], `${other} ${r.method} ${concrete(r.path)} answered ${res.status}`).toContain(res.status)
+    }
+    const after = await db()('audit_log').count({ n: '*' }).first()
+    expect(Number(after!.n)).toBe(Number(before!.n))
+  })
+})
+
+describe('who may void and restore a session', () => {
+  const VOIDERS: Role[] = ['admin', 'supplier_engineer', 'race_engineer']
+  it.each(['void', 'restore'])('POST /api/sessions/[id]/%s: the race engineer and the supplier reach validation (400), other roles 403, nothing written', async (action) => {
+    const before = await db()('audit_log').count({ n: '*' }).first()
+    for (const role of ALL) {
+      // A reason that is not text: allowed roles are stopped by validation, so no session changes.
+      const res = await clients[role]!.post(`/api/sessions/${ids['sessions.id']}/${action}`, { reason: 7 })
+      expect(res.status, `${role} ${action} answered ${res.status}`).toBe(VOIDERS.includes(role) ? 400 : 403)
     }
     const after = await db()('audit_log').count({ n: '*' }).first()
     expect(Number(after!.n)).toBe(Number(before!.n))

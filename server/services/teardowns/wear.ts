@@ -12,7 +12,7 @@ import type { Db } from './common'
 export async function partHoursAt(db: Db, componentIds: number[]) {
   const inst = componentIds.length ? await db('installations').whereIn('component_id', componentIds).select('component_id', 'engine_id', 'from_at', 'to_at') : []
   const engineIds = [...new Set(inst.map((i) => i.engine_id))]
-  const sessions = engineIds.length ? await db('sessions').whereIn('engine_id', engineIds).select('engine_id', 'started_at', 'running_seconds') : []
+  const sessions = engineIds.length ? await db('sessions').whereIn('engine_id', engineIds).whereNull('voided_at').select('engine_id', 'started_at', 'running_seconds') : []
   return (componentId: number, at: Date) => {
     const t = at.getTime()
     let seconds = 0
