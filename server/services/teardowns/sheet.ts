@@ -1,6 +1,7 @@
 // The teardown sheet: opening a teardown, its measurements, and reading teardowns back.
 import type { Knex } from 'knex'
 import { z } from 'zod'
+import { suggestRemovalState } from '#shared/domain/part-state'
 import { TEARDOWN_NOTICE, judge, plausibleRange, type Characteristic } from '#shared/domain/teardown'
 import type { MeasurementSchema, TeardownStartSchema } from '#shared/schemas/teardown'
 import type { ComponentTypeDto } from '#shared/types/fleet'
@@ -132,10 +133,14 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
   const sortOf = (pos: string) => et!.positions.find((p) => p.position === pos)?.sort ?? 9999
   allInst.sort((a, b) => sortOf(a.position) - sortOf(b.position) || Number(a.removed) - Number(b.removed))
 
+  const engineInspectionOpen = life.engines.find((e) => e.id === engine.id)?.overRevFlags.immediateInspection ?? false
   const parts = allInst.map((i) => {
     const comp = comps.get(i.component_id)
     const ct = componentTypes.get(comp.component_type_id) as ComponentTypeDto
     const pl = life.parts.get(comp.id)
+    const finding = findingRows.filter((f) => f.component_id === comp.id).at(-1)
+    // What the swap form offers first for this part's removal; the mechanic still chooses.
+    const removal = suggestRemovalState({ findingDisposition: finding?.disposition ?? null, engineInspectionOpen, partInspectionOpen: pl?.immediateInspection ?? false, fraction: pl?.fraction ?? 0 })
     return {
       componentId: comp.id,
       serial: comp.serial,
@@ -147,6 +152,8 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
       hours: pl?.hours ?? 0,
       lifeFraction: pl?.fraction ?? 0,
       lifeStatus: pl?.status ?? 'ok',
+      suggestedDisposition: removal.state,
+      suggestionReasons: removal.reasons,
       rows: (ct.characteristics as Characteristic[]).map((c) => {
         const m = measurements.find((x) => x.component_id === comp.id && x.characteristic_key === c.key)
         return {
