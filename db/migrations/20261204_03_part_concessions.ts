@@ -6,6 +6,8 @@ export async function up(knex: Knex) {
   await knex.schema.alterTable('installations', (t) => {
     t.enum('removed_status', ['serviceable', 'quarantined', 'scrapped']).nullable()
   })
+  // Removals made in teardowns already recorded the state; carry it over so the history shows it.
+  await knex.raw('UPDATE installations i JOIN teardown_swaps s ON s.removed_installation_id = i.id SET i.removed_status = s.removed_status')
   // The limits that apply to this serial instead of its type's, set by the latest concession that gave any.
   await knex.schema.alterTable('components', (t) => {
     t.json('serial_limits').nullable()

@@ -5,7 +5,7 @@ import type { ComponentLimits, EngineSession, EngineTypeLifeConfig, Installation
 import { engineTypeSheet } from '#shared/domain/kinematics'
 import { withSerialLimits, type SerialLimits } from '#shared/domain/part-state'
 import { decodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
-import type { ComponentTypeDto, EngineTypeDto, EventDto, SessionDto } from '#shared/types/fleet'
+import type { ComponentTypeDto, EngineTypeDto, EventDto, EventRunDto, SessionDto } from '#shared/types/fleet'
 import { iso, json, num, numOrNull } from '../utils/db'
 
 type Db = Knex | Knex.Transaction
@@ -152,7 +152,7 @@ export function toSessionDto(r: any): SessionDto {
   }
 }
 
-export function toEventDto(r: any, plans: any[] = []): EventDto {
+export function toEventDto(r: any, plans: any[] = [], ran: EventRunDto[] = []): EventDto {
   return {
     id: r.id,
     name: r.name,
@@ -173,6 +173,7 @@ export function toEventDto(r: any, plans: any[] = []): EventDto {
         plannedSeconds: p.planned_seconds ?? null,
         plannedKm: numOrNull(p.planned_km),
       })),
+    ran,
   }
 }
 

@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { multiline } from '../text'
 
 // What a finding is about; each kind can be switched on or off for e-mail per user (in-app alerts always show).
-export const ALERT_KINDS = ['life-warning', 'life-due', 'life-over', 'forecast', 'over-rev', 'oil-caution', 'oil-critical'] as const
+export const ALERT_KINDS = ['life-warning', 'life-due', 'life-over', 'forecast', 'over-rev', 'oil-caution', 'oil-critical', 'plan-released'] as const
 export type AlertKind = (typeof ALERT_KINDS)[number]
 
 export const ALERT_KIND_LABELS: Record<AlertKind, string> = {
@@ -13,6 +13,7 @@ export const ALERT_KIND_LABELS: Record<AlertKind, string> = {
   'over-rev': 'Over-rev demanding an immediate inspection',
   'oil-caution': 'Oil analysis at caution',
   'oil-critical': 'Oil analysis critical',
+  'plan-released': 'Engine taken off its coming events (teardown or back to the supplier)',
 }
 
 /** Roles that receive alert e-mails: the supplier's engineers and the running team's managers. */

@@ -12,11 +12,12 @@ import { badRequest, conflict } from '../../utils/errors'
 import { iso, num } from '../../utils/db'
 import { bumpLifeRevision, loadComponentTypes, loadEngineTypes } from '../fleet-data'
 import { engineRowFor } from '../engine-rows'
+import { releaseComingPlans } from '../plan-release'
 import { fleetLife } from '../life'
 import { fmt, teardownFor, assertOpen, teardownParts, partInTeardown } from './common'
 import { blockers } from './sign-off'
 
-export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: z.infer<typeof TeardownStartSchema>) {
+export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: z.infer<typeof TeardownStartSchema>, notice: { publicUrl: string } = { publicUrl: '' }) {
   const engine = await engineRowFor(trx, actor, input.engineId, { forUpdate: true })
   if (engine.status === 'retired') conflict(`${engine.serial} is retired`)
   const openOne = await trx('teardowns').where('engine_id', engine.id).whereNot('state', 'signed off').first('id')
@@ -27,8 +28,15 @@ export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: 
   await trx('engines').where('id', engine.id).update({ status: 'teardown', location: 'teardown' })
   await audit(trx, actor, { entity: 'teardown', entityId: id!, action: 'open', after: { engine: engine.serial, reason: input.reason, at: now.toISOString() } })
   await audit(trx, actor, { entity: 'engine', entityId: engine.id, action: 'teardown', before: { status: engine.status, location: engine.location }, after: { status: 'teardown', location: 'teardown' } })
+  // An engine in teardown cannot run its coming events: free the cars and tell the team's managers.
+  const released = await releaseComingPlans(trx, actor, engine, {
+    because: 'went into teardown',
+    occasion: `teardown-${id}`,
+    engineTypeCode: (await trx('engine_types').where('id', engine.engine_type_id).first('code')).code,
+    publicUrl: notice.publicUrl,
+  })
   await bumpLifeRevision(trx)
-  return { id: id!, engineId: engine.id, state: 'open' as const }
+  return { id: id!, engineId: engine.id, state: 'open' as const, releasedPlans: released.released }
 }
 
 
