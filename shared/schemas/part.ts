@@ -1,6 +1,6 @@
 // Schemas for releasing a part with a concession (form and API).
 import { z } from 'zod'
-import { line, multiline } from '../text'
+import { line } from '../text'
 
 /** Who may release a held or over-limit part: the supplier's engineers (and admins). */
 export const CONCESSION_GRANTERS = ['admin', 'supplier_engineer'] as const
@@ -9,7 +9,8 @@ const newLimit = (unit: string) => z.number({ error: `must be a number of ${unit
 
 export const ConcessionSchema = z
   .object({
-    reason: multiline().trim().min(10, 'say what was inspected and why the part may run (at least 10 characters)').max(2000, 'must be at most 2000 characters'),
+    // One line, as every reason in the product is (notes are the multi-line fields).
+    reason: line().trim().min(10, 'say what was inspected and why the part may run (at least 10 characters)').max(2000, 'must be at most 2000 characters'),
     limitHours: newLimit('hours').optional(),
     limitKm: newLimit('km').optional(),
     limitEqHours: newLimit('equivalent hours').optional(),

@@ -84,6 +84,11 @@ describe('teardown, swap and sign-off', () => {
     const start = await workshop.post('/api/teardowns', { engineId: engine.id, reason: 'scheduled', note: 'Mid-season inspection' })
     expect(start.status, JSON.stringify(start.body)).toBe(201)
     const td = start.body.id
+    // Opening the teardown gave the engine's assignments back (an engine in teardown runs no events),
+    // so the 40 h plan the swap's life warning is checked against below is written straight to the table.
+    expect(await db()('event_plans').where({ event_id: nextEvent.id, engine_id: engine.id }).first()).toBeUndefined()
+    await db()('event_plans').insert({ event_id: nextEvent.id, engine_id: engine.id, team_id: engine.team_id, chassis: null, planned_seconds: 40 * 3600 })
+    await db()('life_revision').where('id', 1).increment('revision', 1)
     const row = await engineRow(ENGINE)
     expect([row.status, row.location]).toEqual(['teardown', 'teardown'])
     expect((await workshop.post('/api/teardowns', { engineId: engine.id, reason: 'scheduled' })).status).toBe(409)
