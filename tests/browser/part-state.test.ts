@@ -50,6 +50,10 @@ describe('use beyond 100 % of a limit', () => {
     const page = await signedInPage(browser, USERS.managerA, LAPTOP)
     await page.goto(`/parts/${turbo.componentId}`, { waitUntil: 'networkidle' })
     expect(await page.locator('[data-test=life-bar-percent]').first().innerText()).toBe('300 %')
+    // Used, the serial's limit (a third of it) and the use beyond it (two thirds), to 0.01 h.
+    const amounts = await page.locator('[role=meter][data-overflow=true]').first().locator('xpath=preceding-sibling::div').innerText()
+    const h = (v: number) => v.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })
+    expect(amounts).toContain(`${h(turbo.hours)} of ${h(turbo.hours / 3)} h · ${h((turbo.hours * 2) / 3)} h over · 300 %`)
     expect(await page.locator('header', { hasText: 'Life used' }).innerText()).toContain('300.0 %')
     await checkOverflow(page, 'section')
     await screenshot(page, 'part-over-limit-laptop')
@@ -66,7 +70,23 @@ describe('use beyond 100 % of a limit', () => {
     await page.setViewportSize(TABLET)
     await page.goto(`/parts/${turbo.componentId}`, { waitUntil: 'networkidle' })
     await screenshot(page, 'part-over-limit-tablet')
+    // A team sees that the part waits for the supplier, but no release form.
+    expect(await page.locator('[data-test=concession]').count()).toBe(0)
     await page.close()
+  })
+
+  it('offers the supplier engineer the concession form for a part beyond its limit', async () => {
+    for (const [viewport, name] of [[LAPTOP, 'laptop'], [TABLET, 'tablet']] as const) {
+      const page = await signedInPage(browser, USERS.supplierEngineer, viewport)
+      await page.goto(`/parts/${turbo.componentId}`, { waitUntil: 'networkidle' })
+      const form = page.locator('[data-test=concession]')
+      expect(await form.innerText()).toContain('Beyond its limit: at 300 % of its running hours limit')
+      await form.getByRole('button', { name: 'Release with a concession…' }).click()
+      await page.locator('#cc-reason').waitFor()
+      expect(await form.innerText()).toContain('needs a new limit')
+      await screenshot(page, `part-concession-${name}`)
+      await page.close()
+    }
   })
 })
 
