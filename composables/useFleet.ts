@@ -34,17 +34,31 @@ export async function useParts(query: Ref<Record<string, string | undefined>>) {
   return { parts: parts.data, status: parts.status, error: parts.error, refresh: parts.refresh }
 }
 
+export interface PartConcession {
+  id: number; grantedAt: string; grantedByName: string; reason: string; statusBefore: string; statusAfter: string; fractionBefore: number | null
+  limits: { hours: number | null; km: number | null; eqHours: number | null; overRevEvents: Record<string, number> | null }
+  findings: { id: number; teardownId: number; condition: string; note: string | null; disposition: string }[]
+}
+export interface PartFinding { id: number; teardownId: number; engineSerial: string; condition: string; disposition: string; note: string | null; at: string }
+export interface ConcessionBody { reason: string; limitHours?: number; limitKm?: number; limitEqHours?: number; limitOverRev?: Record<string, number>; findingIds: number[] }
+
 export interface PartAnswer {
-  part: PartLifeDto & { componentStatus: string; batch: string | null; bornAt: string; engineId: number | null; engineSerial: string | null }
-  installations: { engineId: number; engineSerial: string; position: string; from: string; to: string | null }[]
+  part: PartLifeDto & { componentStatus: string; batch: string | null; bornAt: string; engineId: number | null; engineSerial: string | null; serialLimits: Record<string, unknown> | null }
+  installations: { engineId: number | null; engineSerial: string; position: string; from: string; to: string | null; removedStatus: string | null }[]
+  concessions: PartConcession[]
+  findings: PartFinding[]
   sessions: { id: number; at: string; engineSerial: string; kind: string; runningSeconds: number; distanceKm: number; eventName: string | null }[]
   timeline: { at: string; fraction: number; status: LifeStatus }[]
 }
 
-/** One part's life, where it was fitted and the sessions it ran. */
+/** One part's life, where it was fitted and the sessions it ran; the supplier's release of it. */
 export async function usePart(id: Ref<number>) {
   const part = await useFetch<PartAnswer>(() => `/api/parts/${id.value}`, { key: `part-${id.value}` })
-  return { data: part.data, error: part.error, refresh: part.refresh }
+  async function grantConcession(body: ConcessionBody) {
+    await $fetch(`/api/parts/${id.value}/concessions`, { method: 'POST', body })
+    await part.refresh()
+  }
+  return { data: part.data, error: part.error, refresh: part.refresh, grantConcession }
 }
 
 export interface AuditRow { id: number; at: string; userName: string | null; organisationName: string | null; entity: string; entityId: string; action: string; before: unknown; after: unknown }

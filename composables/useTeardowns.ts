@@ -16,7 +16,7 @@ export async function useTeardownList() {
 }
 
 export interface TeardownFindingBody { condition: string; disposition: string; note: string | null }
-export interface TeardownSwapBody { position: string; serial: string; reason: string; overrideReason?: string }
+export interface TeardownSwapBody { position: string; serial: string; reason: string; overrideReason?: string; removedDisposition?: string }
 
 /** One teardown: its sheet, findings, swaps and sign-off; every change reloads it. */
 export async function useTeardown(id: Ref<number>) {

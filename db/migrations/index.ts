@@ -18,6 +18,7 @@ import * as alertGroups from './20261204_01_a_alert_groups'
 import * as alertGroupsFold from './20261204_01_b_alert_groups_fold'
 import * as sessionVoid from './20261204_02_a_session_void'
 import * as sessionLiveFile from './20261204_02_b_session_live_file'
+import * as partConcessions from './20261204_03_part_concessions'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -40,6 +41,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_01_b_alert_groups_fold': alertGroupsFold,
   '20261204_02_a_session_void': sessionVoid,
   '20261204_02_b_session_live_file': sessionLiveFile,
+  '20261204_03_part_concessions': partConcessions,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -280,7 +280,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
     await trx('installations').where('id', target.id).delete()
     const kv1001 = engineIds['KV8-1001']!
     await trx('engines').where('id', kv1001).update({ built_at: new Date(swapAt.getTime() - 60 * DAY) })
-    await trx('installations').insert({ component_id: moved.component_id, engine_id: kv1001, position: 'crank', from_at: new Date(swapAt.getTime() - 60 * DAY), to_at: swapAt })
+    await trx('installations').insert({ component_id: moved.component_id, engine_id: kv1001, position: 'crank', from_at: new Date(swapAt.getTime() - 60 * DAY), to_at: swapAt, removed_status: 'serviceable' })
     await trx('installations').insert({ component_id: moved.component_id, engine_id: engineIds['KV8-1201'], position: 'crank', from_at: swapAt })
     await trx('installations').insert({ component_id: target.component_id, engine_id: kv1001, position: 'crank', from_at: swapAt })
     // Its sessions in KV8-1001 before the move: two bench runs.

@@ -20,6 +20,8 @@ export async function fitPart(trx: Knex.Transaction, actor: Actor, engineId: num
   }
   const elsewhere = await trx('installations as i').join('engines as e', 'e.id', 'i.engine_id').where('i.component_id', part.id).whereNull('i.to_at').first('e.serial', 'i.position')
   if (elsewhere) conflict(`${input.serial} is already installed in ${elsewhere.serial} at ${elsewhere.position}`)
+  if (part.status === 'quarantined') conflict(`${input.serial} is quarantined pending inspection and cannot be fitted; the supplier engineer can release it with a concession on the part's page`)
+  if (part.status === 'scrapped') conflict(`${input.serial} is scrapped and can never be fitted again`)
   if (part.status !== 'serviceable') conflict(`${input.serial} is ${part.status}, not serviceable`)
   const occupied = await trx('installations as i').join('components as c', 'c.id', 'i.component_id').where({ 'i.engine_id': engineId, 'i.position': input.position }).whereNull('i.to_at').first('c.serial')
   if (occupied) conflict(`${pos.label} of ${engine.serial} already holds ${occupied.serial}: remove it first`)
@@ -39,7 +41,7 @@ export async function removePart(trx: Knex.Transaction, actor: Actor, installati
   if (inst.to_at) conflict('This part was already removed')
   const at = input.at ? new Date(input.at) : new Date()
   if (at < new Date(inst.from_at)) badRequest('Invalid input: at: before the part was fitted')
-  await trx('installations').where('id', installationId).update({ to_at: at })
+  await trx('installations').where('id', installationId).update({ to_at: at, removed_status: input.status })
   const part = await trx('components').where('id', inst.component_id).first()
   await trx('components').where('id', inst.component_id).update({ status: input.status })
   await audit(trx, actor, { entity: 'installation', entityId: installationId, action: 'remove', before: { engine: engine.serial, position: inst.position, serial: part.serial }, after: { at: at.toISOString(), status: input.status } })

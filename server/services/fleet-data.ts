@@ -3,8 +3,9 @@
 import type { Knex } from 'knex'
 import type { ComponentLimits, EngineSession, EngineTypeLifeConfig, Installation, OverRevBand, OverRevEvent } from '#shared/domain/life'
 import { engineTypeSheet } from '#shared/domain/kinematics'
+import { withSerialLimits, type SerialLimits } from '#shared/domain/part-state'
 import { decodeMoments, type RpmMoments } from '#shared/domain/rpm-moments'
-import type { ComponentTypeDto, EngineTypeDto, EventDto, SessionDto } from '#shared/types/fleet'
+import type { ComponentTypeDto, EngineTypeDto, EventDto, EventRunDto, SessionDto } from '#shared/types/fleet'
 import { iso, json, num, numOrNull } from '../utils/db'
 
 type Db = Knex | Knex.Transaction
@@ -69,8 +70,9 @@ export function lifeConfig(t: EngineTypeDto): EngineTypeLifeConfig {
   return { referenceRpm: t.referenceRpm, revLimitRpm: t.revLimitRpm, bandWidthRpm: t.bandWidthRpm, overRevBands: [...t.overRevBands].sort((a, b) => a.minRpm - b.minRpm) }
 }
 
-export function limitsOf(c: ComponentTypeDto): ComponentLimits {
-  return {
+/** The limits a part runs to: its type's, with any set for its serial by a concession (pass the component row). */
+export function limitsOf(c: ComponentTypeDto, comp?: { serial_limits?: unknown } | null): ComponentLimits {
+  return withSerialLimits({
     hours: c.limitHours,
     km: c.limitKm,
     eqHours: c.limitEqHours,
@@ -79,7 +81,7 @@ export function limitsOf(c: ComponentTypeDto): ComponentLimits {
     warningLevel: c.warningLevel,
     dueLevel: c.dueLevel,
     damageExponent: c.damageExponent,
-  }
+  }, comp ? json<SerialLimits | null>(comp.serial_limits, null) : null)
 }
 
 export async function loadEngineTypes(db: Db, where?: (qb: Knex.QueryBuilder) => void): Promise<EngineTypeDto[]> {
@@ -151,7 +153,7 @@ export function toSessionDto(r: any): SessionDto {
   }
 }
 
-export function toEventDto(r: any, plans: any[] = []): EventDto {
+export function toEventDto(r: any, plans: any[] = [], ran: EventRunDto[] = []): EventDto {
   return {
     id: r.id,
     name: r.name,
@@ -172,6 +174,7 @@ export function toEventDto(r: any, plans: any[] = []): EventDto {
         plannedSeconds: p.planned_seconds ?? null,
         plannedKm: numOrNull(p.planned_km),
       })),
+    ran,
   }
 }
 

@@ -61,7 +61,7 @@ async function loadFleetRows(db: Knex, now: Date) {
     loadComponentTypes(db),
     db('engines').select('*'),
     db('installations').select('id', 'component_id', 'engine_id', 'position', 'from_at', 'to_at'),
-    db('components').select('id', 'serial', 'component_type_id', 'status', 'inspection_cleared_at'),
+    db('components').select('id', 'serial', 'component_type_id', 'status', 'inspection_cleared_at', 'serial_limits'),
     loadSessionUsage(db),
     db('events').where('ends_at', '>', now).orderBy('starts_at'),
     db('event_plans').select('*'),
@@ -99,7 +99,7 @@ function indexFleet(rows: Awaited<ReturnType<typeof loadFleetRows>>) {
   }
 }
 type FleetIndex = ReturnType<typeof indexFleet>
-type UsageOf = (componentId: number, componentType: ComponentTypeDto, inspectionClearedAt: string | null) => PartUsage
+type UsageOf = (comp: any, componentType: ComponentTypeDto) => PartUsage
 
 /** A part's usage is the sum over its installation windows, each read from one prefix-sum index per engine. */
 function partUsageCalculator(fleet: FleetIndex): UsageOf {
@@ -113,8 +113,10 @@ function partUsageCalculator(fleet: FleetIndex): UsageOf {
     }
     return idx
   }
-  return (componentId, componentType, inspectionClearedAt) => {
-    const limits = limitsOf(componentType)
+  return (comp, componentType) => {
+    const componentId: number = comp.id
+    const inspectionClearedAt = iso(comp.inspection_cleared_at)
+    const limits = limitsOf(componentType, comp)
     const total = emptyUsage()
     for (const inst of fleet.installsByComponent.get(componentId) ?? []) {
       const idx = indexOf(inst.engineId)
@@ -168,8 +170,8 @@ function engineLife(fleet: FleetIndex, usageOf: UsageOf, e: any, parts: Map<numb
   for (const inst of open) {
     const comp = fleet.compById.get(inst.componentId)
     const ct = fleet.ctById.get(comp.component_type_id)!
-    const limits = limitsOf(ct)
-    const usage = usageOf(comp.id, ct, iso(comp.inspection_cleared_at))
+    const limits = limitsOf(ct, comp)
+    const usage = usageOf(comp, ct)
     const life = evaluatePartLife(usage, limits, cfg)
     const fc = forecastPart(usage, limits, cfg, planned, duty, { defaultSecondsPerEvent: meanPerEvent ?? FALLBACK_SECONDS_PER_EVENT })
     forecastInputs.push({ componentId: comp.id, forecast: fc, immediateInspection: life.immediateInspection })
@@ -249,8 +251,8 @@ function addPartsOutsideEngines(fleet: FleetIndex, usageOf: UsageOf, parts: Map<
     const lastEngine = history.length ? fleet.engineById.get(history[history.length - 1]!.engineId) : null
     const et = lastEngine ? fleet.typeById.get(lastEngine.engine_type_id) : fleet.engineTypes.find((t) => t.positions.some((p) => p.componentTypeId === ct.id))
     if (!et) continue
-    const usage = usageOf(comp.id, ct, iso(comp.inspection_cleared_at))
-    const life = evaluatePartLife(usage, limitsOf(ct), lifeConfig(et))
+    const usage = usageOf(comp, ct)
+    const life = evaluatePartLife(usage, limitsOf(ct, comp), lifeConfig(et))
     parts.set(comp.id, { ...partDto(comp, ct, usage, life, null, null, null), engineId: null })
   }
 }

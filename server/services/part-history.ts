@@ -4,7 +4,9 @@ import { addSession, emptyUsage, evaluatePartLife, sessionsForComponent, type En
 import type { Actor } from '../utils/guard'
 import { canSee, canSeePart } from '../utils/guard'
 import { notFound } from '../utils/errors'
-import { iso } from '../utils/db'
+import { iso, json } from '../utils/db'
+import { hasSerialLimits, mergeSerialLimits, withSerialLimits, type SerialLimits } from '#shared/domain/part-state'
+import { concessionsOf } from './concessions'
 import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toInstallation } from './fleet-data'
 import { loadSessionUsage } from './session-usage'
 import { fleetLife } from './life'
@@ -15,11 +17,12 @@ async function sessionsOfEngines(db: Knex, engineIds: number[]) {
 }
 
 /** Cumulative life after each session; each session is read with the band width it was binned at. */
-function timelineFor(sessions: (EngineSession & { bandWidthRpm: number })[], cfg: ReturnType<typeof lifeConfig>, limits: ReturnType<typeof limitsOf>) {
+function timelineFor(sessions: (EngineSession & { bandWidthRpm: number })[], cfg: ReturnType<typeof lifeConfig>, limits: ReturnType<typeof limitsOf>, limitsAt: (at: string) => ReturnType<typeof limitsOf> = () => limits) {
   let usage = emptyUsage()
   return sessions.map((s) => {
     usage = addSession(usage, s, s.bandWidthRpm === cfg.bandWidthRpm ? cfg : { ...cfg, bandWidthRpm: s.bandWidthRpm }, limits)
-    const life = evaluatePartLife(usage, limits, cfg)
+    // Each point is read against the limits that applied when the session ran (a concession's serial limit from its date on).
+    const life = evaluatePartLife(usage, limitsAt(s.at), cfg)
     return { at: s.at, fraction: life.fraction, status: life.status }
   })
 }
@@ -47,7 +50,22 @@ export async function partHistory(db: Knex, actor: Actor, componentId: number) {
   )
   const kinds = new Map((await db('sessions').whereIn('id', mine.map((s) => s.sessionId)).select('id', 'kind')).map((r) => [r.id, r.kind]))
 
-  const timeline = engineType && componentType ? timelineFor(mine, lifeConfig(engineType), limitsOf(componentType)) : []
+  const concessions = await concessionsOf(db, componentId)
+  // Teardown findings on this part, for a concession to rest on; only those from engines the actor may see.
+  const findingRows = await db('teardown_findings as f').join('teardowns as t', 't.id', 'f.teardown_id').join('engines as e', 'e.id', 't.engine_id').where('f.component_id', componentId).orderBy('f.id').select('f.id', 'f.teardown_id', 'f.condition', 'f.disposition', 'f.note', 'f.created_at', 'e.serial as engine_serial', 'e.supplier_id', 'e.team_id')
+  const findings = findingRows
+    .filter((f) => canSee(actor, { supplierId: f.supplier_id, teamId: f.team_id }))
+    .map((f) => ({ id: f.id, teardownId: f.teardown_id, engineSerial: f.engine_serial, condition: f.condition, disposition: f.disposition, note: f.note ?? null, at: iso(f.created_at) }))
+  const limitSteps: { at: number; serial: SerialLimits }[] = []
+  let serial: SerialLimits | null = null
+  for (const c of concessions) {
+    const given = { hours: c.limits.hours ?? undefined, km: c.limits.km ?? undefined, eqHours: c.limits.eqHours ?? undefined, overRevEvents: c.limits.overRevEvents ?? undefined }
+    if (!hasSerialLimits(given)) continue
+    serial = mergeSerialLimits(serial, given)
+    limitSteps.push({ at: Date.parse(c.grantedAt), serial })
+  }
+  const limitsAt = (at: string) => withSerialLimits(limitsOf(componentType!), limitSteps.filter((st) => st.at <= Date.parse(at)).at(-1)?.serial ?? null)
+  const timeline = engineType && componentType ? timelineFor(mine, lifeConfig(engineType), limitsOf(componentType, comp), limitsAt) : []
 
   return {
     part: {
@@ -63,7 +81,10 @@ export async function partHistory(db: Knex, actor: Actor, componentId: number) {
       engineId: current?.engine_id ?? null,
       engineSerial: current?.engine_serial ?? null,
       position: current?.position ?? null,
+      serialLimits: json<SerialLimits | null>(comp.serial_limits, null),
     },
+    concessions,
+    findings,
     // Installations in another team's engines are shown without naming that engine.
     installations: installRows.map((r) => ({
       engineId: visibleEngine.get(r.engine_id) ? r.engine_id : null,
@@ -71,6 +92,7 @@ export async function partHistory(db: Knex, actor: Actor, componentId: number) {
       position: r.position,
       from: iso(r.from_at),
       to: iso(r.to_at),
+      removedStatus: r.removed_status ?? null,
     })),
     sessions: mine
       .filter((s) => visibleEngine.get(s.engineId))
@@ -92,7 +114,7 @@ export async function engineCharts(db: Knex, engineId: number) {
   const engine = await db('engines').where('id', engineId).first()
   const [engineType] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
   const componentTypes = new Map((await loadComponentTypes(db)).map((c) => [c.id, c]))
-  const open = await db('installations as i').join('components as c', 'c.id', 'i.component_id').where('i.engine_id', engineId).whereNull('i.to_at').select('i.component_id', 'c.component_type_id')
+  const open = await db('installations as i').join('components as c', 'c.id', 'i.component_id').where('i.engine_id', engineId).whereNull('i.to_at').select('i.component_id', 'c.component_type_id', 'c.serial_limits')
   const componentIds = open.map((r) => r.component_id)
   const installations = componentIds.length ? (await db('installations').whereIn('component_id', componentIds)).map(toInstallation) : []
   const sessions = await sessionsOfEngines(db, [...new Set([engineId, ...installations.map((i) => i.engineId)])])
@@ -101,7 +123,7 @@ export async function engineCharts(db: Knex, engineId: number) {
   const groups = new Map<string, Map<string, number>>()
   for (const r of open) {
     const ct = componentTypes.get(r.component_type_id)!
-    const series = timelineFor(sessionsForComponent(r.component_id, installations, sessions) as any, cfg, limitsOf(ct))
+    const series = timelineFor(sessionsForComponent(r.component_id, installations, sessions) as any, cfg, limitsOf(ct, r))
     let g = groups.get(ct.category)
     if (!g) groups.set(ct.category, (g = new Map()))
     for (const p of series) g.set(p.at, Math.max(g.get(p.at) ?? 0, p.fraction))

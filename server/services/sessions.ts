@@ -146,13 +146,13 @@ export async function sessionView(db: Knex, actor: Actor, id: number): Promise<S
     .where('i.engine_id', row.engine_id)
     .where('i.from_at', '<=', row.started_at)
     .where((w) => w.whereNull('i.to_at').orWhere('i.to_at', '>', row.started_at))
-    .select('c.id', 'c.serial', 'c.component_type_id', 'i.position')
+    .select('c.id', 'c.serial', 'c.component_type_id', 'c.serial_limits', 'i.position')
   const session = toEngineSession(row)
   const cfg = lifeConfig(type!)
   const exact = session.rpmMoments != null
   const cost: SessionCostDto[] = fitted.map((p) => {
     const ct = componentTypes.get(p.component_type_id)!
-    const limits = limitsOf(ct)
+    const limits = limitsOf(ct, p)
     const usage = addSession(emptyUsage(), session, cfg, limits)
     const life = evaluatePartLife(usage, limits, cfg)
     const range = exact ? null : histogramEqHoursBounds(session.histogram, session.bandWidthRpm, cfg.referenceRpm, ct.damageExponent)

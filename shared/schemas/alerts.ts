@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { multiline } from '../text'
 
 // What a finding is about; each kind can be switched on or off for e-mail per user (in-app alerts always show).
-export const ALERT_KINDS = ['life-warning', 'life-due', 'life-over', 'forecast', 'over-rev', 'oil-caution', 'oil-critical'] as const
+export const ALERT_KINDS = ['life-warning', 'life-due', 'life-over', 'forecast', 'over-rev', 'oil-caution', 'oil-critical', 'plan-released'] as const
 export type AlertKind = (typeof ALERT_KINDS)[number]
 
 export const ALERT_KIND_LABELS: Record<AlertKind, string> = {
@@ -13,17 +13,19 @@ export const ALERT_KIND_LABELS: Record<AlertKind, string> = {
   'over-rev': 'Over-rev demanding an immediate inspection',
   'oil-caution': 'Oil analysis at caution',
   'oil-critical': 'Oil analysis critical',
+  'plan-released': 'Engine taken off its coming events (teardown or back to the supplier)',
 }
 
 /** The families of causes an alert can have: a part group's threshold, an over-rev verdict, a forecast, an oil sample. */
-export const ALERT_CAUSES = ['life', 'over-rev', 'forecast', 'oil'] as const
+export const ALERT_CAUSES = ['life', 'over-rev', 'forecast', 'oil', 'planning'] as const
 export type AlertCause = (typeof ALERT_CAUSES)[number]
-export const ALERT_CAUSE_LABELS: Record<AlertCause, string> = { life: 'Part life', 'over-rev': 'Over-rev', forecast: 'Forecast', oil: 'Oil analysis' }
+export const ALERT_CAUSE_LABELS: Record<AlertCause, string> = { life: 'Part life', 'over-rev': 'Over-rev', forecast: 'Forecast', oil: 'Oil analysis', planning: 'Event plan' }
 export const KINDS_OF_CAUSE: Record<AlertCause, AlertKind[]> = {
   life: ['life-warning', 'life-due', 'life-over'],
   'over-rev': ['over-rev'],
   forecast: ['forecast'],
   oil: ['oil-caution', 'oil-critical'],
+  planning: ['plan-released'],
 }
 export const causeOfKind = (kind: AlertKind): AlertCause => ALERT_CAUSES.find((c) => KINDS_OF_CAUSE[c].includes(kind))!
 
@@ -31,7 +33,7 @@ export const causeOfKind = (kind: AlertKind): AlertCause => ALERT_CAUSES.find((c
  * Levels from the most to the least severe. "Do not run" and "inspect now" are urgent: they are
  * mailed at once as well as in the digest.
  */
-export const ALERT_LEVELS = ['over', 'inspection', 'critical', 'due', 'forecast', 'warning', 'caution'] as const
+export const ALERT_LEVELS = ['over', 'inspection', 'critical', 'due', 'forecast', 'warning', 'caution', 'planning'] as const
 export type AlertLevel = (typeof ALERT_LEVELS)[number]
 export const ALERT_LEVEL_INFO: Record<AlertLevel, { label: string; urgent: boolean }> = {
   over: { label: 'Do not run', urgent: true },
@@ -41,6 +43,7 @@ export const ALERT_LEVEL_INFO: Record<AlertLevel, { label: string; urgent: boole
   forecast: { label: 'Forecast', urgent: false },
   warning: { label: 'Warning', urgent: false },
   caution: { label: 'Caution (oil)', urgent: false },
+  planning: { label: 'Plan changed', urgent: false },
 }
 /** 0 is the most severe; an unknown level sorts last. */
 export function levelRank(level: string): number {

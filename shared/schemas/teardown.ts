@@ -1,6 +1,7 @@
 // Schemas shared by the teardown forms and the teardown API.
 import { z } from 'zod'
 import { line, multiline } from '../text'
+import { REMOVAL_STATES } from '../domain/part-state'
 import { CHARACTERISTIC_UNITS, DISPOSITIONS, TEARDOWN_CONDITIONS } from '../domain/teardown'
 
 export const TEARDOWN_REASONS = ['life due', 'over-rev inspection', 'oil alarm', 'failure', 'scheduled'] as const
@@ -49,6 +50,8 @@ export const SwapSchema = z.object({
   serial: line().trim().min(1, 'is required').max(60),
   reason: line().trim().min(3, 'say why the part is changed (at least 3 characters)').max(500),
   overrideReason: line().trim().min(3, 'must be at least 3 characters').max(500).optional(),
+  // Required whenever a part is fitted at the position (the service says so naming the serial).
+  removedDisposition: z.enum(REMOVAL_STATES, { error: `must be one of ${REMOVAL_STATES.join(', ')}` }).optional(),
 })
 
 export const SignOffSchema = z.object({

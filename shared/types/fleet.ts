@@ -211,6 +211,16 @@ export interface EventDto {
   plannedSeconds: number | null
   plannedKm: number | null
   plans: { engineId: number; engineSerial: string; teamId: number; chassis: string | null; plannedSeconds: number | null; plannedKm: number | null }[]
+  /** engines that ran the event (the actor's own, or all for the supplier), with their sessions in order */
+  ran: EventRunDto[]
+}
+
+export interface EventRunDto {
+  engineId: number
+  engineSerial: string
+  teamName: string | null
+  runningSeconds: number
+  sessions: { id: number; kind: string; startedAt: string; runningSeconds: number }[]
 }
 
 /** What one session cost one part fitted at the time. */

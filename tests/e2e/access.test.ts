@@ -179,3 +179,14 @@ describe('who may void and restore a session', () => {
     expect(Number(after!.n)).toBe(Number(before!.n))
   })
 })
+
+describe('releasing a part by concession', () => {
+  it('POST /api/parts/[id]/concessions: every role but the supplier engineer and admin gets 403; they get 400 for an empty body, and nothing is written', async () => {
+    const url = concrete('/api/parts/[id]/concessions')
+    for (const role of ALL) {
+      const res = await clients[role]!.post(url, {})
+      expect(res.status, `${role} ${url}`).toBe(SUPPLIER.includes(role) ? 400 : 403)
+    }
+    expect(await db()('part_concessions').where('component_id', ids['parts.id']).first()).toBeUndefined()
+  })
+})

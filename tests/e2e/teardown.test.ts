@@ -84,6 +84,11 @@ describe('teardown, swap and sign-off', () => {
     const start = await workshop.post('/api/teardowns', { engineId: engine.id, reason: 'scheduled', note: 'Mid-season inspection' })
     expect(start.status, JSON.stringify(start.body)).toBe(201)
     const td = start.body.id
+    // Opening the teardown gave the engine's assignments back (an engine in teardown runs no events),
+    // so the 40 h plan the swap's life warning is checked against below is written straight to the table.
+    expect(await db()('event_plans').where({ event_id: nextEvent.id, engine_id: engine.id }).first()).toBeUndefined()
+    await db()('event_plans').insert({ event_id: nextEvent.id, engine_id: engine.id, team_id: engine.team_id, chassis: null, planned_seconds: 40 * 3600 })
+    await db()('life_revision').where('id', 1).increment('revision', 1)
     const row = await engineRow(ENGINE)
     expect([row.status, row.location]).toEqual(['teardown', 'teardown'])
     expect((await workshop.post('/api/teardowns', { engineId: engine.id, reason: 'scheduled' })).status).toBe(409)
@@ -176,11 +181,11 @@ describe('teardown, swap and sign-off', () => {
     // Bad swaps change nothing.
     const rod1Inst = await db()('installations').where({ engine_id: engine.id, position: 'rod-1' }).whereNull('to_at').first()
     const crankSpare = await newSpare('KT4-CRK')
-    const wrongType = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: crankSpare, reason: 'scored big end' })
+    const wrongType = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: crankSpare, reason: 'scored big end', removedDisposition: 'serviceable' })
     expect(wrongType.status).toBe(400)
     expect(wrongType.body.message).toMatch(/serial: .* is a Crankshaft .*Conrod 1 takes a Connecting rod/)
     const otherSerial = (await db()('components').where('id', otherEnginePart.component_id).first()).serial
-    const elsewhere = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: otherSerial, reason: 'scored big end' })
+    const elsewhere = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: otherSerial, reason: 'scored big end', removedDisposition: 'serviceable' })
     expect(elsewhere.status).toBe(409)
     expect(elsewhere.body.message).toMatch(/already installed in KT4-2101 at rod-1/)
     const rodSpare = await newSpare('KT4-ROD')
@@ -188,7 +193,7 @@ describe('teardown, swap and sign-off', () => {
     expect(noReason.status).toBe(400)
     expect(noReason.body.message).toMatch(/reason/)
     // Not enough life for the 40 h plan: a warning that needs an override reason.
-    const warned = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: rodSpare, reason: 'scored big end' })
+    const warned = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: rodSpare, reason: 'scored big end', removedDisposition: 'serviceable' })
     expect(warned.status).toBe(409)
     expect(warned.body.message).toMatch(/overrideReason: .* is projected at \d+ % of its life limit after Touring round/)
     expect(warned.body.data.needsOverride).toBe(true)
@@ -197,7 +202,7 @@ describe('teardown, swap and sign-off', () => {
     expect((await db()('components').where('serial', rodSpare).first()).status).toBe('serviceable')
     expect(await db()('teardown_swaps').where('teardown_id', td).first()).toBeUndefined()
 
-    const swapped = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: rodSpare, reason: 'scored big end', overrideReason: 'Plan will be cut to a 3 h test before the event' })
+    const swapped = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'rod-1', serial: rodSpare, reason: 'scored big end', overrideReason: 'Plan will be cut to a 3 h test before the event', removedDisposition: 'serviceable' })
     expect(swapped.status, JSON.stringify(swapped.body)).toBe(201)
     expect(swapped.body.removedStatus).toBe('serviceable') // disposition replace: back to the shelf as a spare
     const swapRow = await db()('teardown_swaps').where('id', swapped.body.id).first()
@@ -210,11 +215,11 @@ describe('teardown, swap and sign-off', () => {
     const piston2 = sheet.parts.find((p: any) => p.position === 'piston-2')
     expect((await workshop.post(`/api/teardowns/${td}/findings`, { componentId: piston2.componentId, condition: 'cracked', note: 'Crack at the pin boss', disposition: 'scrap' })).status).toBe(201)
     const pistonSpare = await newSpare('KT4-PST')
-    const swap2 = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'piston-2', serial: pistonSpare, reason: 'cracked at pin boss' })
+    const swap2 = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'piston-2', serial: pistonSpare, reason: 'cracked at pin boss', removedDisposition: 'scrapped' })
     expect(swap2.status, JSON.stringify(swap2.body)).toBe(201)
     expect([swap2.body.removedStatus, swap2.body.lifeWarning]).toEqual(['scrapped', null])
     // The removed part is no longer fitted anywhere and the fitted one is not a spare any more.
-    const refit = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'piston-3', serial: pistonSpare, reason: 'try' })
+    const refit = await workshop.post(`/api/teardowns/${td}/swaps`, { position: 'piston-3', serial: pistonSpare, reason: 'try', removedDisposition: 'serviceable' })
     expect(refit.status).toBe(409)
 
     // Sign-off: never by the person who opened or measured; a second person may.

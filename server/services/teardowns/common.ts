@@ -1,6 +1,5 @@
 // What every part of a teardown shares: finding the teardown the actor may see, its parts, and its state.
 import type { Knex } from 'knex'
-import type { Disposition } from '#shared/domain/teardown'
 import type { Actor } from '../../utils/guard'
 import { canSee } from '../../utils/guard'
 import { badRequest, conflict, notFound } from '../../utils/errors'
@@ -8,13 +7,6 @@ import { loadComponentTypes, loadEngineTypes } from '../fleet-data'
 
 export type Db = Knex | Knex.Transaction
 export const FALLBACK_SECONDS_PER_EVENT = 3 * 3600
-
-/** Where a removed part goes, from the finding's disposition (no finding: back to the shelf). */
-export function statusForDisposition(d: Disposition | null): 'serviceable' | 'quarantined' | 'scrapped' {
-  if (d === 'scrap') return 'scrapped'
-  if (d === 'quarantine' || d === 'send-to-lab') return 'quarantined'
-  return 'serviceable'
-}
 
 export const fmt = (v: number) => String(Number(v.toPrecision(8)))
 

@@ -1,6 +1,7 @@
 // The teardown sheet: opening a teardown, its measurements, and reading teardowns back.
 import type { Knex } from 'knex'
 import { z } from 'zod'
+import { suggestRemovalState } from '#shared/domain/part-state'
 import { TEARDOWN_NOTICE, judge, plausibleRange, type Characteristic } from '#shared/domain/teardown'
 import type { MeasurementSchema, TeardownStartSchema } from '#shared/schemas/teardown'
 import type { ComponentTypeDto } from '#shared/types/fleet'
@@ -11,11 +12,12 @@ import { badRequest, conflict } from '../../utils/errors'
 import { iso, num } from '../../utils/db'
 import { bumpLifeRevision, loadComponentTypes, loadEngineTypes } from '../fleet-data'
 import { engineRowFor } from '../engine-rows'
+import { releaseComingPlans } from '../plan-release'
 import { fleetLife } from '../life'
 import { fmt, teardownFor, assertOpen, teardownParts, partInTeardown } from './common'
 import { blockers } from './sign-off'
 
-export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: z.infer<typeof TeardownStartSchema>) {
+export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: z.infer<typeof TeardownStartSchema>, notice: { publicUrl: string } = { publicUrl: '' }) {
   const engine = await engineRowFor(trx, actor, input.engineId, { forUpdate: true })
   if (engine.status === 'retired') conflict(`${engine.serial} is retired`)
   const openOne = await trx('teardowns').where('engine_id', engine.id).whereNot('state', 'signed off').first('id')
@@ -26,8 +28,15 @@ export async function startTeardown(trx: Knex.Transaction, actor: Actor, input: 
   await trx('engines').where('id', engine.id).update({ status: 'teardown', location: 'teardown' })
   await audit(trx, actor, { entity: 'teardown', entityId: id!, action: 'open', after: { engine: engine.serial, reason: input.reason, at: now.toISOString() } })
   await audit(trx, actor, { entity: 'engine', entityId: engine.id, action: 'teardown', before: { status: engine.status, location: engine.location }, after: { status: 'teardown', location: 'teardown' } })
+  // An engine in teardown cannot run its coming events: free the cars and tell the team's managers.
+  const released = await releaseComingPlans(trx, actor, engine, {
+    because: 'went into teardown',
+    occasion: `teardown-${id}`,
+    engineTypeCode: (await trx('engine_types').where('id', engine.engine_type_id).first('code')).code,
+    publicUrl: notice.publicUrl,
+  })
   await bumpLifeRevision(trx)
-  return { id: id!, engineId: engine.id, state: 'open' as const }
+  return { id: id!, engineId: engine.id, state: 'open' as const, releasedPlans: released.released }
 }
 
 
@@ -132,10 +141,14 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
   const sortOf = (pos: string) => et!.positions.find((p) => p.position === pos)?.sort ?? 9999
   allInst.sort((a, b) => sortOf(a.position) - sortOf(b.position) || Number(a.removed) - Number(b.removed))
 
+  const engineInspectionOpen = life.engines.find((e) => e.id === engine.id)?.overRevFlags.immediateInspection ?? false
   const parts = allInst.map((i) => {
     const comp = comps.get(i.component_id)
     const ct = componentTypes.get(comp.component_type_id) as ComponentTypeDto
     const pl = life.parts.get(comp.id)
+    const finding = findingRows.filter((f) => f.component_id === comp.id).at(-1)
+    // What the swap form offers first for this part's removal; the mechanic still chooses.
+    const removal = suggestRemovalState({ findingDisposition: finding?.disposition ?? null, engineInspectionOpen, partInspectionOpen: pl?.immediateInspection ?? false, fraction: pl?.fraction ?? 0 })
     return {
       componentId: comp.id,
       serial: comp.serial,
@@ -147,6 +160,8 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
       hours: pl?.hours ?? 0,
       lifeFraction: pl?.fraction ?? 0,
       lifeStatus: pl?.status ?? 'ok',
+      suggestedDisposition: removal.state,
+      suggestionReasons: removal.reasons,
       rows: (ct.characteristics as Characteristic[]).map((c) => {
         const m = measurements.find((x) => x.component_id === comp.id && x.characteristic_key === c.key)
         return {

@@ -1,18 +1,19 @@
 // Part swaps during a teardown, with what the fitted part can run before the next event.
 import type { Knex } from 'knex'
 import { z } from 'zod'
+import { REMOVAL_STATES, suggestRemovalState, type RemovalState } from '#shared/domain/part-state'
 import { forecastPart, recentDuty, type PlannedEvent } from '#shared/domain/forecast'
 import { addSession, emptyUsage, evaluatePartLife, sessionsForComponent } from '#shared/domain/life'
 import type { SwapSchema } from '#shared/schemas/teardown'
 import type { EngineTypeDto } from '#shared/types/fleet'
 import type { Actor } from '../../utils/guard'
 import { audit } from '../../utils/audit'
-import { conflict } from '../../utils/errors'
+import { badRequest, conflict } from '../../utils/errors'
 import { iso } from '../../utils/db'
 import { fitPart, removePart } from '../builds'
 import { lifeConfig, limitsOf, loadComponentTypes, loadEngineTypes, toInstallation } from '../fleet-data'
 import { loadSessionUsage } from '../session-usage'
-import { statusForDisposition, teardownFor, assertOpen, FALLBACK_SECONDS_PER_EVENT, type Db } from './common'
+import { teardownFor, assertOpen, FALLBACK_SECONDS_PER_EVENT, type Db } from './common'
 
 async function nextEventFor(db: Db, engine: any, type: EngineTypeDto, now: Date): Promise<PlannedEvent & { assigned: boolean } | null> {
   const assigned = await db('event_plans as p').join('events as ev', 'ev.id', 'p.event_id').where('p.engine_id', engine.id).where('ev.ends_at', '>', now).orderBy('ev.starts_at').first('ev.*', 'p.planned_seconds as plan_seconds', 'p.planned_km as plan_km')
@@ -32,7 +33,7 @@ export async function projectForNextEvent(trx: Db, engine: any, componentId: num
   const ev = await nextEventFor(trx, engine, et!, now)
   if (!ev) return { ok: true, event: null, fractionAfter: null, message: null }
   const cfg = lifeConfig(et!)
-  const limits = limitsOf(ct!)
+  const limits = limitsOf(ct!, comp)
   // The part's own life, straight from its installations and sessions (never a stale cache).
   const partInst = (await trx('installations').where('component_id', componentId)).map(toInstallation)
   const engineIds = [...new Set([engine.id, ...partInst.map((i) => i.engineId)])]
@@ -55,15 +56,23 @@ export async function projectForNextEvent(trx: Db, engine: any, componentId: num
   return { ok, event: ev, fractionAfter: after, message }
 }
 
+const RANK: Record<RemovalState, number> = { serviceable: 0, quarantined: 1, scrapped: 2 }
+
 export async function swapPart(trx: Knex.Transaction, actor: Actor, teardownId: number, input: z.infer<typeof SwapSchema>) {
   const { td, engine } = await teardownFor(trx, actor, teardownId, { forUpdate: true })
   assertOpen(td)
   const current = await trx('installations').where({ engine_id: engine.id, position: input.position }).whereNull('to_at').first()
   const at = new Date()
-  let removedStatus: 'serviceable' | 'quarantined' | 'scrapped' = 'serviceable'
+  let removedStatus: RemovalState | null = null
   if (current) {
-    const finding = await trx('teardown_findings').where({ teardown_id: td.id, component_id: current.component_id }).first('disposition')
-    removedStatus = statusForDisposition(finding?.disposition ?? null)
+    const removed = await trx('components').where('id', current.component_id).first('serial')
+    // The state a part leaves in decides whether it can run again, so it is always asked for, never assumed.
+    if (!input.removedDisposition) badRequest(`Invalid input: removedDisposition: say what state ${removed.serial} leaves the engine in: ${REMOVAL_STATES.join(', ')}`)
+    removedStatus = input.removedDisposition
+    // A finding already decided the part is held or scrapped: the swap may not send it back to the shelf.
+    const finding = await trx('teardown_findings').where({ teardown_id: td.id, component_id: current.component_id }).orderBy('id', 'desc').first('disposition')
+    const held = suggestRemovalState({ findingDisposition: finding?.disposition ?? null, engineInspectionOpen: false, partInspectionOpen: false, fraction: 0 })
+    if (RANK[removedStatus] < RANK[held.state]) conflict(`Invalid input: removedDisposition: ${removed.serial} cannot leave as ${removedStatus}: ${held.reasons.join('; ')}`)
     await removePart(trx, actor, current.id, { at: at.toISOString(), status: removedStatus })
   }
   // fitPart refuses a wrong type (400), a part fitted elsewhere or not serviceable (409); the transaction undoes the removal.
