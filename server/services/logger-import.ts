@@ -117,6 +117,7 @@ function sessionFields(r: LoggerImportResult) {
       maxWaterTempC: s.maxWaterTempC,
       maxSpeedKmh: s.maxSpeedKmh,
       minOilPressureBar: s.minOilPressureBar,
+      traceOverview: s.channels,
     },
     details: {
       rows: r.rows,
@@ -281,6 +282,7 @@ async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxB
       max_speed_kmh: f.extras.maxSpeedKmh,
       min_oil_pressure_bar: f.extras.minOilPressureBar,
       details: JSON.stringify({ ...details, ...f.details }),
+      trace_overview: JSON.stringify(f.extras.traceOverview),
     })
     await audit(trx, actor, {
       entity: 'session',
