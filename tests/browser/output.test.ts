@@ -81,7 +81,7 @@ describe('teardown report', () => {
     const page = await signedInPage(browser, USERS.mechanicA)
     await page.goto(`/teardowns/${td.id}`)
     await page.locator('[data-test=teardown]').waitFor()
-    const body = (await page.locator('body').textContent()) ?? ''
+    const body = await page.evaluate(() => document.body.innerText)
     expect(body).toContain('← Teardowns')
     const opened = new Date(td.opened_at)
     const day = opened.toLocaleDateString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', timeZone: 'UTC' })
@@ -106,7 +106,8 @@ describe('part page', () => {
     await expect.poll(() => page.evaluate(() => (window as any).__printCalls)).toBe(1)
     expect(violations).toEqual([])
     expect(await page.locator('[data-test=export-csv]').getAttribute('href')).toBe(`/api/parts/${inst.component_id}/history.csv`)
-    expect(((await page.locator('body').textContent()) ?? '').match(/licensed practice/g)?.length).toBe(1)
+    // innerText: what is shown, not the page's data payload
+    expect((await page.evaluate(() => document.body.innerText)).match(/licensed practice/g)?.length).toBe(1)
     await screenshot(page, 'part-laptop')
     await page.setViewportSize(TABLET)
     await screenshot(page, 'part-tablet')
@@ -120,7 +121,7 @@ describe('part page', () => {
 describe('session page charts', () => {
   it('draws engine speed, oil temperature, oil pressure, water temperature and speed, with the over-revs marked', async () => {
     const row = await db()('sessions as s').join('engines as e', 'e.id', 's.engine_id').where('e.serial', 'KV8-1102').whereRaw("JSON_SEARCH(s.over_revs, 'one', 'C', NULL, '$[*].bandId') IS NOT NULL").first('s.id', 's.over_revs')
-    const overRevs = JSON.parse(row.over_revs)
+    const overRevs = typeof row.over_revs === 'string' ? JSON.parse(row.over_revs) : row.over_revs
     const page = await signedInPage(browser, USERS.managerA)
     await page.goto(`/sessions/${row.id}`)
     const channels = ['rpm', 'oilTempC', 'oilPressureBar', 'waterTempC', 'speedKmh']

@@ -77,11 +77,12 @@ export function pdfText(pdf: Buffer): string {
       if (line.trim()) lines.push(line)
       line = ''
     }
-    for (const tok of content.matchAll(/\/(\w+)\s+[\d.]+\s+Tf|<([0-9a-fA-F]*)>|\[|\]\s*TJ|\bT[dDm*]\b|\bET\b/g)) {
+    // Chromium places glyph by glyph (Td) and draws spaces as glyphs: a text object (BT … ET) is one line
+    for (const tok of content.matchAll(/\/(\w+)\s+[\d.]+\s+Tf|<([0-9a-fA-F]*)>|\bET\b/g)) {
       if (tok[1]) font = fontMaps.get(names.get(tok[1]) ?? -1)
       else if (tok[2] !== undefined) {
         for (const g of tok[2].match(/.{4}/g) ?? []) line += font?.get(parseInt(g, 16)) ?? ''
-      } else if (/^T[dDm*]$|^ET$/.test(tok[0])) flush()
+      } else flush()
     }
     flush()
   }

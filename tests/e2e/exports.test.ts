@@ -20,6 +20,8 @@ let otherTeam: Client
 
 /** How a spreadsheet receives a header and rows: RFC 4180 lines ending CRLF. */
 const csv = (lines: string[]) => `${lines.join('\r\n')}\r\n`
+/** RFC 4180: a cell holding a comma or a quote is quoted, quotes doubled */
+const cell = (s: string) => (/[",]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s)
 
 beforeAll(async () => {
   const engine = await db()('engines').where('serial', ENGINE).first()
@@ -33,7 +35,8 @@ beforeAll(async () => {
   chars = (typeof ct.characteristics === 'string' ? JSON.parse(ct.characteristics) : ct.characteristics).slice(0, 2)
   mechanic = await db()('users').where('email', USERS.mechanicA).first('id', 'name')
   const signer = await db()('users').where('email', USERS.supplierEngineer).first('id')
-  ;[teardownId] = await db()('teardowns').insert({ engine_id: engine.id, reason: 'scheduled', opened_by: mechanic.id, opened_at: new Date(OPENED), state: 'signed off', signed_by: signer.id, signed_at: new Date('2026-03-03T09:00:00Z'), note: 'Export check' })
+  const [inserted] = await db()('teardowns').insert({ engine_id: engine.id, reason: 'scheduled', opened_by: mechanic.id, opened_at: new Date(OPENED), state: 'signed off', signed_by: signer.id, signed_at: new Date('2026-03-03T09:00:00Z'), note: 'Export check' })
+  teardownId = inserted!
   // one reading in tolerance (the nominal), one above the band
   await db()('teardown_measurements').insert([
     { teardown_id: teardownId, component_id: partId, characteristic_key: chars[0]!.key, value: chars[0]!.nominal, unit: chars[0]!.unit, verdict: 'in', measured_by: mechanic.id, at: new Date(MEASURED) },
@@ -99,7 +102,7 @@ describe('part history CSV', () => {
         const at = new Date(s.started_at).toISOString()
         const hours = Number((Number(s.running_seconds) / 3600).toFixed(3))
         const km = Number(Number(s.distance_km).toFixed(1))
-        lines.push({ at, order: 1, line: `session,${at},,${i.serial},,${s.event_name ?? ''},${s.kind},${hours},${km}` })
+        lines.push({ at, order: 1, line: `session,${at},,${i.serial},,${cell(s.event_name ?? '')},${s.kind},${hours},${km}` })
       }
     }
     lines.sort((x, y) => x.at.localeCompare(y.at) || x.order - y.order)
