@@ -6,6 +6,7 @@ import { Readable, Transform } from 'node:stream'
 import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
+import { storedOverview } from '#shared/domain/trace/chart'
 import type { OverRevEvent } from '#shared/domain/over-rev'
 import type { EngineTypeDto } from '#shared/types/fleet'
 import { scopeQuery, type Actor } from '../utils/guard'
@@ -117,7 +118,7 @@ function sessionFields(r: LoggerImportResult) {
       maxWaterTempC: s.maxWaterTempC,
       maxSpeedKmh: s.maxSpeedKmh,
       minOilPressureBar: s.minOilPressureBar,
-      traceOverview: s.channels,
+      traceOverview: storedOverview(s.channels),
     },
     details: {
       rows: r.rows,

@@ -1,11 +1,9 @@
 // The session page's charts from a stored sessions row.
-import { overviewFromRpmPoints, traceChart, type TraceChart } from '#shared/domain/trace/chart'
+import { CHART_BUCKETS, overviewFromRpmPoints, traceChart, type TraceChart } from '#shared/domain/trace/chart'
 import type { TraceOverview } from '#shared/domain/trace/overview'
 import type { SessionDto } from '#shared/types/fleet'
 import { json } from '../utils/db'
 
-/** Buckets sent to the browser per chart: enough for a laptop-wide line, few enough to draw at once. */
-export const CHART_BUCKETS = 300
 
 /** What the session page charts: the stored overview (rpm alone for one stored before channels), downsampled, with event markers. */
 export function sessionChart(row: { trace_overview?: unknown; details?: unknown }, session: Pick<SessionDto, 'overRevs' | 'lowOilPressure'>): TraceChart | null {

@@ -3,6 +3,7 @@
 // were, so nothing is audited and life is not recomputed.
 import { createGunzip } from 'node:zlib'
 import type { Knex } from 'knex'
+import { storedOverview } from '#shared/domain/trace/chart'
 import { getFile } from '../utils/file-store'
 import { loadEngineTypes } from './fleet-data'
 import { analyzeLoggerStream } from './logger-csv'
@@ -23,7 +24,7 @@ async function overviewFromKeptFile(db: Knex, row: any, maxBytes: number) {
   const unpacked = createGunzip()
   unpacked.end(raw)
   const result = await analyzeLoggerStream(unpacked, details.mapping, cfg, { maxBytes })
-  return result.summary.channels
+  return storedOverview(result.summary.channels)
 }
 
 /** Runs once at start on one instance (named lock); a session whose file cannot be read keeps the rpm-only overview and is reported. */

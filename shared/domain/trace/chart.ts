@@ -21,6 +21,14 @@ export interface TraceChart {
   markers: ChartMarker[]
 }
 
+/** Buckets a session stores and the browser draws per chart: enough for a laptop-wide line, half the analyzer's, so a session row stays small (about 25 kB). */
+export const CHART_BUCKETS = 300
+
+/** The form a session stores: the analyzer's overview merged to CHART_BUCKETS. */
+export function storedOverview(ov: TraceOverview): TraceOverview {
+  return downsampleOverview(ov, CHART_BUCKETS)
+}
+
 const lower = (a: number | null, b: number | null) => (a === null ? b : b === null ? a : Math.min(a, b))
 const higher = (a: number | null, b: number | null) => (a === null ? b : b === null ? a : Math.max(a, b))
 
