@@ -19,6 +19,7 @@ import * as alertGroupsFold from './20261204_01_b_alert_groups_fold'
 import * as sessionVoid from './20261204_02_a_session_void'
 import * as sessionLiveFile from './20261204_02_b_session_live_file'
 import * as partConcessions from './20261204_03_part_concessions'
+import * as traceOverview from './20261204_04_trace-overview'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -42,6 +43,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_02_a_session_void': sessionVoid,
   '20261204_02_b_session_live_file': sessionLiveFile,
   '20261204_03_part_concessions': partConcessions,
+  '20261204_04_trace-overview': traceOverview,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

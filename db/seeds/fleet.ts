@@ -248,7 +248,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           // A flick past the inspection threshold inside a longer logged excursion: one event, logged.
           excursions.push({ at: 0.5, peakRpm: t.overRevBands[0]!.minRpm + 40, holdS: 0.6, spike: { rpm: t.overRevBands[1]!.minRpm + 60, seconds: 0.05 } })
         }
-        const trace = syntheticTrace(t, seconds, rand, { intensity: s.kind === 'qualifying' ? 1.4 : 1, excursions })
+        const trace = syntheticTrace(t, seconds, rand, { intensity: s.kind === 'qualifying' ? 1.4 : 1, excursions, channels: { topSpeedKmh: AVG_SPEED_KMH[t.code]! * 1.8 } })
         const startedAt = new Date(ev.startsAt + s.day * DAY + (k % 2) * 4 * 3600_000)
         await trx('sessions').insert(tracedSessionRow(trace, t, DEMO_EXPONENTS, {
           engine_id: engineId,
@@ -257,11 +257,9 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
           kind: s.kind,
           started_at: startedAt,
           distance_km: Math.round((trace.runningSeconds / 3600) * AVG_SPEED_KMH[t.code]! * (0.95 + rand() * 0.1) * 10) / 10,
-          max_oil_temp_c: Math.round((118 + rand() * 14) * 10) / 10,
-          max_water_temp_c: Math.round((96 + rand() * 10) * 10) / 10,
-          max_speed_kmh: Math.round((AVG_SPEED_KMH[t.code]! * 1.75 + rand() * 15) * 10) / 10,
-          min_oil_pressure_bar: Math.round((2.6 + rand() * 0.8) * 100) / 100,
         }))
+        // maxima come from the trace's channels; four draws keep the rest of the demo as it was
+        for (let k = 0; k < 4; k++) rand()
       }
     }
   }
@@ -286,7 +284,7 @@ export async function seedFleet(trx: Knex.Transaction, ctx: { supplierId: number
     // Its sessions in KV8-1001 before the move: two bench runs.
     const t = ENGINE_TYPES[0]!
     for (const [d, hours] of [[-40, 6], [-25, 7]] as const) {
-      const trace = syntheticTrace(t, hours * 3600, rand, { intensity: 1.2 })
+      const trace = syntheticTrace(t, hours * 3600, rand, { intensity: 1.2, channels: { topSpeedKmh: null } })
       await trx('sessions').insert(tracedSessionRow(trace, t, DEMO_EXPONENTS, {
         engine_id: kv1001,
         team_id: null,

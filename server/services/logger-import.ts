@@ -6,6 +6,7 @@ import { Readable, Transform } from 'node:stream'
 import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
+import { storedOverview } from '#shared/domain/trace/chart'
 import type { OverRevEvent } from '#shared/domain/over-rev'
 import type { EngineTypeDto } from '#shared/types/fleet'
 import { scopeQuery, type Actor } from '../utils/guard'
@@ -119,6 +120,7 @@ function sessionFields(r: LoggerImportResult) {
       maxWaterTempC: s.maxWaterTempC,
       maxSpeedKmh: s.maxSpeedKmh,
       minOilPressureBar: s.minOilPressureBar,
+      traceOverview: storedOverview(s.channels),
     },
     details: {
       rows: r.rows,
@@ -283,6 +285,7 @@ async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxB
       max_speed_kmh: f.extras.maxSpeedKmh,
       min_oil_pressure_bar: f.extras.minOilPressureBar,
       details: JSON.stringify({ ...details, ...f.details }),
+      trace_overview: JSON.stringify(f.extras.traceOverview),
     })
     await audit(trx, actor, {
       entity: 'session',

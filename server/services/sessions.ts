@@ -14,6 +14,7 @@ import { canSee } from '../utils/guard'
 import { iso, json } from '../utils/db'
 import { checkSessionDate, type EventDates } from '#shared/domain/session-date'
 import { engineRowFor } from './engine-rows'
+import { sessionChart } from './session-chart'
 import { announceLifeChanged } from '../utils/life-events'
 
 export interface SessionExtras {
@@ -30,6 +31,8 @@ export interface SessionExtras {
   fileName?: string | null
   fileSha256?: string | null
   details?: unknown
+  /** every channel's range per overview bucket (shared/domain/trace/overview.ts) */
+  traceOverview?: unknown
 }
 
 export function expectedBands(t: { revLimitRpm: number; bandWidthRpm: number }) {
@@ -95,6 +98,7 @@ export async function insertSession(trx: Knex.Transaction, actor: Actor, input: 
     // The owner scope within which a logger file is unique: the running team, else the supplier.
     file_scope_id: engine.team_id ?? engine.supplier_id,
     details: extras.details === undefined ? null : JSON.stringify(extras.details),
+    trace_overview: extras.traceOverview === undefined ? null : JSON.stringify(extras.traceOverview),
     created_by: actor.id,
   })
   await audit(trx, actor, {
@@ -182,6 +186,7 @@ export async function sessionView(db: Knex, actor: Actor, id: number): Promise<S
   return {
     session: toSessionDto(row),
     details: details && { overview: details.overview ?? [], warnings: details.warnings ?? [], skippedRows: details.skippedRows ?? 0, rows: details.rows ?? null, gaps: details.gaps ?? [], gapCount: details.gapCount ?? 0, distanceSource: details.distanceSource ?? null },
+    chart: sessionChart(row, toSessionDto(row)),
     eqErrorBound: exact ? Math.max(0, ...cost.map((c) => momentsRelativeErrorBound(c.damageExponent))) : null,
     cost,
     overRevDamage,

@@ -26,7 +26,7 @@ import { summarize } from './trace/summary'
 import { TRACE_MAX_RPM, createTraceBlock, type OverRevBandConfig, type TraceAnalyzer, type TraceBlock, type TraceConfig, type TraceSample, type TraceSummary } from './trace/types'
 
 export { TraceConfigError, validateTraceConfig } from './trace/config'
-export { OVERVIEW_MAX_POINTS } from './trace/overview'
+export { OVERVIEW_CHANNELS, OVERVIEW_MAX_POINTS, type ChannelRange, type OverviewChannel, type TraceOverview } from './trace/overview'
 export { MAX_LISTED_GAPS } from './trace/running-time'
 export {
   TRACE_MAX_RPM,
@@ -107,11 +107,6 @@ class TraceAnalyzerCore implements TraceAnalyzer {
   private maxSpeed = -Infinity
   private minOilPressure = Infinity
 
-  // the overview bucket being filled
-  private bucketCount = 0
-  private bucketMax = -1
-  private bucketT = NaN
-
   constructor(cfg: TraceConfig) {
     validateTraceConfig(cfg)
     this.cfg = cfg
@@ -185,10 +180,6 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     let maxOilTemp = this.maxOilTemp
     let maxWaterTemp = this.maxWaterTemp
     let minOilPressure = this.minOilPressure
-    let bucketSize = overview.bucketSize
-    let bucketCount = this.bucketCount
-    let bucketMax = this.bucketMax
-    let bucketT = this.bucketT
 
     for (let i = 0; i < count; i++) {
       const t = T[i]!
@@ -267,15 +258,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
       if (waterTemp > maxWaterTemp) maxWaterTemp = waterTemp
       if (band >= 0 && oilPressure < minOilPressure) minOilPressure = oilPressure
 
-      if (rpm > bucketMax) {
-        bucketMax = rpm
-        bucketT = t
-      }
-      if (++bucketCount >= bucketSize) {
-        bucketSize = overview.add(bucketT, bucketMax)
-        bucketCount = 0
-        bucketMax = -1
-      }
+      overview.sample(t, rpm, oilTemp, oilPressure, waterTemp, speed)
 
       samples++
       prevT = t
@@ -301,9 +284,6 @@ class TraceAnalyzerCore implements TraceAnalyzer {
     this.maxOilTemp = maxOilTemp
     this.maxWaterTemp = maxWaterTemp
     this.minOilPressure = minOilPressure
-    this.bucketCount = bucketCount
-    this.bucketMax = bucketMax
-    this.bucketT = bucketT
   }
 
   /** Refuses the whole block before any state changes. */
@@ -331,10 +311,7 @@ class TraceAnalyzerCore implements TraceAnalyzer {
       if (this.lopOpen) this.lowOil.close(this.lopStart, endT, this.lopMin, this.firstT)
       this.orOpen = false
       this.lopOpen = false
-      if (this.bucketCount > 0) {
-        this.overview.addLast(this.bucketT, this.bucketMax)
-        this.bucketCount = 0
-      }
+      this.overview.finish()
     }
     return summarize(
       this.cfg,

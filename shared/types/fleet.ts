@@ -2,6 +2,7 @@
 import type { LifeStatus, LimitMeasure, OverRevBand } from '../domain/life'
 import type { EngineTypeSheet } from '../domain/kinematics'
 import type { CanFinishReason } from '../domain/forecast'
+import type { TraceChart } from '../domain/trace/chart'
 
 export type { LifeStatus, LimitMeasure, OverRevBand }
 
@@ -259,6 +260,8 @@ export interface SessionViewDto {
     gapCount: number
     distanceSource: string | null
   } | null
+  /** the trace over time for the charts (downsampled, with the over-rev and low oil pressure markers); null without a trace */
+  chart: TraceChart | null
   /** largest relative error of the equivalent hours shown, over the exponents of the fitted parts (exact sessions) */
   eqErrorBound: number | null
   cost: SessionCostDto[]

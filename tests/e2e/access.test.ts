@@ -63,15 +63,18 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/organisations': ALL,
   '/api/parts/[id]': ALL,
   '/api/parts/[id]/wear': ALL,
+  '/api/parts/[id]/history.csv': ALL,
   '/api/parts': ALL,
   '/api/sessions/[id]': ALL,
   '/api/sessions': ALL,
   '/api/teardowns/findings': TEARDOWN,
+  '/api/teardowns/[id]': ALL,
+  '/api/teardowns/[id]/measurements.csv': ALL,
   '/api/teardowns': ALL,
   '/api/users': ['admin', 'team_manager'],
 }
 /** GET routes whose record may not exist in the demo (answer 404 for everyone with the role). */
-const NO_DEMO_RECORD = new Set(['/api/oil/samples/[id]/report', '/api/teardown-photos/[id]', '/api/teardowns/[id]'])
+const NO_DEMO_RECORD = new Set(['/api/oil/samples/[id]/report', '/api/teardown-photos/[id]'])
 
 const ROLE_USER: Record<Role, string> = {
   admin: USERS.admin,
@@ -96,6 +99,8 @@ beforeAll(async () => {
   const event = await db()('events').where('series', 'Meridian Endurance GT').where('starts_at', '>', new Date()).orderBy('starts_at').first()
   const user = await db()('users').where('email', USERS.raceA).first()
   const sample = await db()('oil_samples').where('engine_id', engine.id).first()
+  // a signed-off demo teardown of Marlowe's KT4-2201 (team A)
+  const teardown = await db()('teardowns as t').join('engines as e', 'e.id', 't.engine_id').where('e.serial', 'KT4-2201').orderBy('t.id').first('t.id')
   ids = {
     'engines.id': engine.id,
     'oil/engines.id': engine.id,
@@ -110,6 +115,7 @@ beforeAll(async () => {
     'engine-types.id': 1,
     'limits.id': 1,
     'samples.id': sample?.id ?? 999_999,
+    'teardowns.id': teardown.id,
   }
   for (const role of ALL) clients[role] = await signIn(ROLE_USER[role])
   clients.otherManager = await signIn(USERS.managerB)
@@ -143,7 +149,7 @@ describe('roles and organisations on every GET route', () => {
       const expected = NO_DEMO_RECORD.has(r.path) ? [403, 404] : READ_ROLES[r.path]!.includes(role) ? [200] : [403]
       expect(expected, `${role} ${url} answered ${res.status}: ${JSON.stringify(res.body).slice(0, 200)}`).toContain(res.status)
     }
-    if (/\/(engines|parts|sessions|installations|users|samples)\/\d+/.test(url)) {
+    if (/\/(engines|parts|sessions|installations|users|samples|teardowns)\/\d+/.test(url)) {
       for (const other of ['otherManager', 'otherRace'] as const) {
         const res = await clients[other]!.get(url)
         expect([403, 404], `${other} ${url}`).toContain(res.status)

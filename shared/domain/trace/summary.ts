@@ -60,5 +60,6 @@ export function summarize(cfg: TraceConfig, totals: TraceTotals, parts: TracePar
     maxSpeedKmh: totals.maxSpeed === -Infinity ? null : totals.maxSpeed,
     minOilPressureBar: totals.minOilPressure === Infinity ? null : totals.minOilPressure,
     overview: parts.overview.points(firstT),
+    channels: parts.overview.ranges(firstT),
   }
 }

@@ -2,6 +2,7 @@
 
 import type { OverRevBandRule, OverRevEvent } from '../over-rev'
 import type { RpmMoments } from '../rpm-moments'
+import type { TraceOverview } from './overview'
 
 export type OverRevBandConfig = OverRevBandRule
 export type { OverRevEvent }
@@ -69,6 +70,8 @@ export interface TraceSummary {
   minOilPressureBar: number | null
   /** at most OVERVIEW_MAX_POINTS points, each the highest rpm of its bucket so peaks show */
   overview: { t: number; rpm: number }[]
+  /** per overview bucket: its time span and every channel's lowest and highest value */
+  channels: TraceOverview
 }
 
 /**
