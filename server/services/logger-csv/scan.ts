@@ -43,10 +43,24 @@ export class RowScanner {
     this.slot[conv.iTime] = 0
   }
 
-  /** Rows read so far end where the last line break of a chunk is; the part after it waits for the next chunk. */
+  /**
+   * Rows end at line breaks; the part after a chunk's last one waits for the next chunk. Only
+   * that part and the start of the next chunk up to its first line break are ever copied.
+   */
   take(buf: Buffer): void {
-    const data = this.rest ? Buffer.concat([this.rest, buf]) : buf
-    this.rest = null
+    let data = buf
+    if (this.rest) {
+      const nl = buf.indexOf(this.nl)
+      if (nl < 0) {
+        data = Buffer.concat([this.rest, buf])
+      } else {
+        const joined = Buffer.concat([this.rest, buf.subarray(0, nl + 1)])
+        const done = this.scan(joined, 0, joined.length)
+        if (done === joined.length) data = buf.subarray(nl + 1)
+        else data = Buffer.concat([joined.subarray(done), buf.subarray(nl + 1)]) // a quoted cell runs on
+      }
+      this.rest = null
+    }
     const to = data.lastIndexOf(this.nl) + 1
     const done = to > 0 ? this.scan(data, 0, to) : 0
     if (done < data.length) {
