@@ -34,7 +34,8 @@ export default defineNuxtConfig({
     alertSchedule: '*/15 * * * *',
     alertsEnabled: true,
     storageDir: '.data/files',
-    loggerMaxBytes: 200 * 1024 * 1024,
+    // a 24-hour race at 100 Hz with 40-80 channels is 2-4 GB of CSV; files are streamed, never held whole
+    loggerMaxBytes: 8 * 1024 * 1024 * 1024,
     // Sign-in sessions (README "Security"): `maxAge` is the absolute lifetime in seconds, enforced
     // on the server (auth_sessions) and used as the cookie's lifetime; `sessionIdleTimeout` ends a
     // session after that many seconds without a request. 12 h and 30 min: OWASP ASVS 4.0 3.3.2, level 2.

@@ -10,6 +10,8 @@ export interface LoggerUploadHandlers {
   /** the server's message; a duplicate names the session that already holds the file */
   onRefused: (message: string, duplicateOf: number | null) => void
   onLost: () => void
+  /** what the upload is doing now (compressing, then sending) */
+  onPhase?: (phase: string) => void
 }
 
 /** Engines, events and saved column profiles for a logger import; saving a profile and sending the file. */
@@ -26,22 +28,35 @@ export async function useLoggerImport() {
     return profiles.data.value.find((p) => p.name === name) ?? null
   }
 
-  function uploadLoggerFile(query: URLSearchParams, file: File, on: LoggerUploadHandlers) {
+  /**
+   * Sends the file gzip-compressed by the browser (CompressionStream) when it can, plain
+   * otherwise; the server keeps the compressed bytes as they came and reads them as it receives.
+   */
+  async function uploadLoggerFile(query: URLSearchParams, file: File, on: LoggerUploadHandlers) {
+    let body: Blob = file
+    let gzipped = false
+    if (typeof CompressionStream !== 'undefined') {
+      on.onPhase?.('Compressing')
+      body = await new Response(file.stream().pipeThrough(new CompressionStream('gzip'))).blob()
+      gzipped = true
+    }
+    on.onPhase?.('Uploading and reading')
     // XMLHttpRequest for upload progress; the server reads the file as it arrives, so this is processing progress too.
     const xhr = new XMLHttpRequest()
     xhr.open('POST', `/api/imports?${query}`)
     xhr.setRequestHeader('content-type', 'text/csv')
+    if (gzipped) xhr.setRequestHeader('content-encoding', 'gzip')
     xhr.upload.onprogress = (e) => on.onProgress(e.lengthComputable ? e.loaded / e.total : null, e.loaded === e.total)
     xhr.onload = () => {
-      let body: any = null
+      let res: any = null
       try {
-        body = JSON.parse(xhr.responseText)
+        res = JSON.parse(xhr.responseText)
       } catch {}
-      if (xhr.status === 201) on.onStored(body.session.id)
-      else on.onRefused(body?.message ?? `The import failed (${xhr.status})`, xhr.status === 409 && typeof body?.data?.sessionId === 'number' ? body.data.sessionId : null)
+      if (xhr.status === 201) on.onStored(res.session.id)
+      else on.onRefused(res?.message ?? `The import failed (${xhr.status})`, xhr.status === 409 && typeof res?.data?.sessionId === 'number' ? res.data.sessionId : null)
     }
     xhr.onerror = () => on.onLost()
-    xhr.send(file)
+    xhr.send(body)
   }
 
   return { engines: engines.data, events: events.data, profiles: profiles.data, refreshProfiles: profiles.refresh, saveProfile, uploadLoggerFile }

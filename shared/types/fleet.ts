@@ -211,6 +211,8 @@ export interface SessionViewDto {
     gaps: { atS: number; seconds: number }[]
     gapCount: number
     distanceSource: string | null
+    /** metadata lines the logger wrote before the channel names */
+    loggerMetadata: string[]
   } | null
   /** largest relative error of the equivalent hours shown, over the exponents of the fitted parts (exact sessions) */
   eqErrorBound: number | null

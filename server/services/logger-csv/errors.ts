@@ -14,6 +14,8 @@
 //   no_header            the layout puts the channel names on a line the file never reaches 400
 //   unknown_unit         the units row names a unit not read, for a mapped channel; row   400
 //   unclosed_quote       a quoted cell that runs on for more than 1 MiB; row              400
+//   bad_gzip             a compressed upload whose gzip stream is corrupt or cut off      400
+//                        (raised by the import service, which decompresses)
 //   time_backwards       a timestamp earlier than the previous row's; row, column       400
 //   time_duplicate       a timestamp equal to the previous row's; row, column           400
 //   too_many_bad_rows    more skipped rows than maxBadRows (default 1000) or than
