@@ -85,6 +85,15 @@ const isNumberCell = (c: string) => {
   const s = c.trim()
   return s !== '' && (Number.isFinite(Number(s.replace(',', '.'))) || parseClock(s) !== null)
 }
+// Unit words seen in common practice on units rows, beside those read for a channel.
+const OTHER_UNITS = new Set(['rpm', '1/min', '%', 'g', 'deg', '°', 'v', 'mv', 'a', 'ma', 'mm', 'm', 'km', 'nm', 'hz', 'lambda', 'kg', 'l', 'l/h', 'm/s', 'm/s2', 'm/s^2', 'rad', 'rad/s', 'deg/s', 'n', 'kn', 'kw', 'hp', 'mbar', 'hpa', 'ohm', 'gear', '-', '#', 'k', 'sec', 'min', 'h'])
+const looksLikeUnit = (c: string) => {
+  const s = c.trim().toLowerCase()
+  if (s === '' || /^[[(].*[\])]$/.test(s) || s.includes('°') || OTHER_UNITS.has(s)) return true
+  return (['time', 'speed', 'oilTemp', 'oilPressure'] as const).some((ch) => unitFromCell(ch, s))
+}
+const unitShare = (cells: string[]) => cells.filter(looksLikeUnit).length / Math.max(1, cells.length)
+
 const numericShare = (cells: string[]) => cells.filter(isNumberCell).length / Math.max(1, cells.length)
 
 export interface DetectedLayout {
@@ -102,7 +111,8 @@ export interface DetectedLayout {
  * Finds the channel names in the first lines of a file: the first line, after at most
  * LOGGER_MAX_PREAMBLE_LINES, with as many cells as the data rows below it, mostly not numbers,
  * followed (after an optional units row, also mostly not numbers) by rows that are mostly
- * numbers. Null when no such line is found.
+ * numbers. A units row is taken as one only when most of its cells read as units. Null when
+ * no such line is found.
  */
 export function detectLayout(lines: string[], delimiter: string): DetectedLayout | null {
   const cells = lines.map((l) => splitLine(l.replace(/\r$/, ''), delimiter))
@@ -112,7 +122,7 @@ export function detectLayout(lines: string[], delimiter: string): DetectedLayout
     if (width < 2 || numericShare(cells[h]!) > 0.2) continue
     if (isData(h + 1, width)) return layoutAt(lines, cells, h, false)
     const next = cells[h + 1]
-    if (next && next.length === width && numericShare(next) <= 0.2 && isData(h + 2, width)) return layoutAt(lines, cells, h, true)
+    if (next && next.length === width && numericShare(next) <= 0.2 && unitShare(next) >= 0.6 && isData(h + 2, width)) return layoutAt(lines, cells, h, true)
   }
   return null
 }
