@@ -53,7 +53,7 @@ async function readIn(mode: Mode, file: string, endByte?: number): Promise<numbe
     const count = () => { n++ }
     for await (const chunk of createReadStream(file, { encoding: 'utf8', end: endByte, highWaterMark: 1 << 20 }) as AsyncIterable<string>) {
       parser ??= initParser(inferSchema(chunk))
-      parser.chunk(chunk, parser.stringArrs, count)
+      parser.chunk<string[]>(chunk, parser.stringArrs as (s: string) => string[][], count)
     }
     parser?.end()
     return n

@@ -13,6 +13,7 @@ import { announceLifeChanged } from '../utils/life-events'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { fileSink, fileSource, newFileKey, removeFile } from '../utils/file-store'
+import { finishedUpload, removeUpload } from '../utils/uploads'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
@@ -172,6 +173,23 @@ export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta,
     throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(declaredBytes / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
   }
   const result = await storeLoggerFile(db, actor, meta, upload.body, maxBytes, upload.gzipped ?? false)
+  announceLifeChanged()
+  return result
+}
+
+/**
+ * Imports a finished resumable upload (server/utils/uploads.ts) as a session, the same way as a
+ * streamed one; the upload is removed once the session is stored. When the import is refused
+ * the upload stays (to be imported again with a corrected mapping) until it expires.
+ */
+export async function importFinishedUpload(db: Knex, actor: Actor, uploadId: string, meta: ImportMeta, maxBytes: number) {
+  const upload = await finishedUpload(uploadId, actor)
+  if (!upload) notFound('Upload')
+  if (upload.size > maxBytes) {
+    throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(upload.size / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
+  }
+  const result = await storeLoggerFile(db, actor, meta, upload.open(), maxBytes, upload.gzipped)
+  await removeUpload(uploadId)
   announceLifeChanged()
   return result
 }

@@ -77,4 +77,54 @@ describe('logger import in Chromium', () => {
     expect(summary).toContain('6750')
     await page.close()
   })
+
+  it('uploads a compressed file in parts with its progress bar, and after a reload goes on from the last part', async () => {
+    // about 1 MB of trace with noisy digits: several 64 KiB parts once compressed (scripts/test.sh sets the part size)
+    const lines = ['time_s,engine_rpm,oil_temp_c']
+    let x = 7
+    for (let i = 0; i < 30000; i++) {
+      x = (x * 48271) % 2147483647
+      lines.push(`${(i / 100).toFixed(2)},${i < 15000 ? 5250 : 5750},${(90 + (x % 1000) / 100).toFixed(2)}`)
+    }
+    const dir = mkdtempSync(join(tmpdir(), 'cl-'))
+    const file = join(dir, 'browser-resume.csv')
+    writeFileSync(file, `${lines.join('\n')}\n`)
+    const engine = await db()('engines').where('serial', 'KT4-2102').first()
+
+    const page = await signedInPage(browser, 'race@redfern.test')
+    await page.goto(`/sessions/import?engine=${engine.id}`)
+    await page.setInputFiles('[data-test=file-input]', file)
+    await expect.poll(() => page.locator('[data-test=detected]').textContent()).toContain('comma')
+    // the link drops after two parts: the third part never arrives
+    let parts = 0
+    let dropped!: () => void
+    const droppedNow = new Promise<void>((resolve) => (dropped = resolve))
+    await page.route('**/api/uploads/*', async (route) => {
+      if (route.request().method() === 'PATCH' && ++parts > 2) {
+        dropped()
+        return route.abort('connectionfailed')
+      }
+      return route.continue()
+    })
+    await page.click('[data-test=upload]')
+    await droppedNow
+    await expect.poll(() => page.locator('[data-test=progress-bytes]').textContent()).toMatch(/of [\d.]+ MiB compressed/)
+    await screenshot(page, 'import-upload-progress')
+
+    // reload, choose the same file again: the upload goes on where the server stopped
+    await page.unrouteAll()
+    const offsets: number[] = []
+    page.on('request', (r) => {
+      if (r.method() === 'PATCH' && r.url().includes('/api/uploads/')) offsets.push(Number(r.headers()['upload-offset']))
+    })
+    await page.reload()
+    await page.setInputFiles('[data-test=file-input]', file)
+    await expect.poll(() => page.locator('[data-test=detected]').textContent()).toContain('comma')
+    await page.click('[data-test=upload]')
+    await page.waitForURL(/\/sessions\/\d+$/)
+    expect(offsets[0]).toBe(2 * 65536)
+    const summary = await page.locator('[data-test=session-summary]').textContent()
+    expect(summary).toContain('5750')
+    await page.close()
+  })
 })
