@@ -6,7 +6,6 @@
 
 import { spawnSync } from 'node:child_process'
 import { closeSync, createReadStream, fsyncSync, mkdtempSync, openSync, readSync, rmSync, statSync } from 'node:fs'
-import { request as httpRequest } from 'node:http'
 import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -14,7 +13,7 @@ import Papa from 'papaparse'
 import { inferSchema, initParser } from 'udsv'
 import { analyzeLoggerStream } from '../server/services/logger-csv'
 import { BENCH_TRACE_CONFIG, traceCsvMapping, writeTraceFile } from './make-trace'
-import { sh, signIn, startServer, startTestDb } from './server'
+import { serverImports } from './import-server'
 
 const HZ = 100
 // The short file gets more pairs: a third of a second is easily disturbed on a shared machine.
@@ -169,47 +168,13 @@ async function main(): Promise<void> {
     const rss1 = results['1h']!.crankledger.maxRssMB
     const rss6 = results['6h']!.crankledger.maxRssMB
     console.log(`peak RSS 6h / 1h (crankledger): ${(rss6 / rss1).toFixed(2)} (target <= 1.2)`)
-    if (!args.includes('--no-server')) await wholeImport(join(dir, 'trace-6h.csv'))
+    if (!args.includes('--no-server')) {
+      const bigAt = args.indexOf('--big-gb')
+      await serverImports(join(dir, 'trace-6h.csv'), dir, bigAt >= 0 ? Number(args[bigAt + 1]) : 2)
+    }
   } finally {
     if (!args.includes('--keep')) rmSync(dir, { recursive: true, force: true })
     else console.log(`files kept in ${dir}`)
-  }
-}
-
-/**
- * The whole import of the 6 h file through the built server: upload on loopback, streaming
- * analysis, gzip copy into storage and the database transaction, timed from the first byte
- * sent to the answer. Uses the test MariaDB instance (reset to the demo data).
- */
-async function wholeImport(file: string) {
-  const url = startTestDb()
-  sh('npx', ['tsx', 'db/cli.ts', 'reset'], { NUXT_DATABASE_URL: url })
-  const server = await startServer(url, 3397)
-  try {
-    const base = server.base
-    const cookie = await signIn(base, 'race@redfern.test')
-    const engines = (await (await fetch(`${base}/api/engines`, { headers: { cookie } })).json()) as { id: number; serial: string }[]
-    const engine = engines.find((e) => e.serial === 'KT4-2102')!
-    const q = new URLSearchParams({ engineId: String(engine.id), kind: 'test', startedAt: new Date().toISOString(), fileName: 'trace-6h.csv', mapping: JSON.stringify(traceCsvMapping()) })
-    // node:http with a piped file stream: the cheapest client, since in use the browser sits on another machine.
-    const t0 = performance.now()
-    const { status, text } = await new Promise<{ status: number; text: string }>((resolveAnswer, reject) => {
-      const req = httpRequest(`${base}/api/imports?${q}`, { method: 'POST', headers: { cookie, origin: base, 'content-type': 'text/csv', 'content-length': String(statSync(file).size) } }, (res) => {
-        let text = ''
-        res.setEncoding('utf8')
-        res.on('data', (c: string) => (text += c))
-        res.on('end', () => resolveAnswer({ status: res.statusCode ?? 0, text }))
-      })
-      req.on('error', reject)
-      createReadStream(file, { highWaterMark: 1 << 20 }).pipe(req)
-    })
-    const answer = JSON.parse(text) as { session?: { runningSeconds: number }; message?: string }
-    const seconds = (performance.now() - t0) / 1000
-    const res = { status }
-    if (res.status !== 201) throw new Error(`import failed: ${res.status} ${answer.message}`)
-    console.log(`whole import of the 6 h file through the server (upload, analysis, storage, database): ${seconds.toFixed(2)} s (target < 5 s); running time found ${(answer.session!.runningSeconds / 3600).toFixed(2)} h`)
-  } finally {
-    await server.stop()
   }
 }
 
