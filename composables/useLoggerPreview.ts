@@ -5,6 +5,55 @@ import type { LoggerProfile } from '~/composables/useLoggerImport'
 /** Bytes read in the browser for the preview: enough for a long preamble and the first rows. */
 const PREVIEW_BYTES = 256 * 1024
 
+export interface InspectedFile {
+  layout: DetectedLayout
+  delimiter: string
+  previewRows: string[][]
+  /** the logger's own start of recording, from the metadata lines, as an ISO date-time */
+  loggerStart: string | null
+  profile: LoggerProfile | null
+}
+
+/** The layout found with each delimiter; the one with the most channel names wins. */
+function bestLayout(lines: string[]): { layout: DetectedLayout; delimiter: string } | null {
+  let best: { layout: DetectedLayout; delimiter: string } | null = null
+  for (const d of LOGGER_DELIMITERS) {
+    const layout = detectLayout(lines, d)
+    if (layout && (!best || layout.header.length > best.layout.header.length)) best = { layout, delimiter: d }
+  }
+  return best
+}
+
+/**
+ * Reads the first lines of a file: its layout, first rows, the logger's start and the saved
+ * profile whose channel names it has (whatever its metadata lines say). Throws with a message
+ * for the engineer when nothing can be found.
+ */
+export async function inspectLoggerFile(f: File, profiles: LoggerProfile[]): Promise<InspectedFile> {
+  const text = await f.slice(0, PREVIEW_BYTES).text()
+  const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/)
+  if (f.size > PREVIEW_BYTES) lines.pop() // cut off mid-line
+  const found = bestLayout(lines.slice(0, 400))
+  if (!found) throw new Error(lines.some((l) => l.trim() !== '') ? 'No line of channel names followed by rows of numbers was found in the first lines of the file.' : 'The file is empty.')
+  const { layout, delimiter } = found
+  return {
+    layout,
+    delimiter,
+    previewRows: lines.slice(layout.firstDataLine - 1, layout.firstDataLine + 11).filter((l) => l.trim() !== '').map((l) => l.split(delimiter)),
+    loggerStart: preambleStart(preambleEntries(layout.preamble, delimiter)),
+    profile: profiles.find((p) => p.headerSignature === headerSignature(layout.header)) ?? null,
+  }
+}
+
+/** A profile's mapping with this file's own layout (the profile may have been saved from a file with other metadata lines). */
+export function profileMappingFor(profile: LoggerProfile, inspected: InspectedFile): LoggerMapping {
+  const m = JSON.parse(JSON.stringify(profile.mapping)) as LoggerMapping
+  const { layout } = inspected
+  m.delimiter = inspected.delimiter as LoggerMapping['delimiter']
+  m.layout = { headerLine: layout.headerLine, unitsRow: layout.unitsRow, unitsFromRow: layout.unitsRow && (profile.mapping.layout?.unitsFromRow ?? false) }
+  return m
+}
+
 /**
  * The first lines of a logger file read in the browser: metadata lines, the line of channel
  * names and an optional units row, delimiter, decimal separator and a column mapping, taken
@@ -29,46 +78,28 @@ export function useLoggerPreview(profiles: Ref<LoggerProfile[]>) {
   const profileName = ref('')
   const error = ref('')
 
-  /** The layout found with each delimiter; the one with the most channel names wins. */
-  function bestLayout(lines: string[]): { layout: DetectedLayout; delimiter: string } | null {
-    let best: { layout: DetectedLayout; delimiter: string } | null = null
-    for (const d of LOGGER_DELIMITERS) {
-      const layout = detectLayout(lines, d)
-      if (layout && (!best || layout.header.length > best.layout.header.length)) best = { layout, delimiter: d }
-    }
-    return best
-  }
-
   async function readPreview(f: File) {
     error.value = ''
     file.value = f
-    let text: string
+    let inspected: InspectedFile
     try {
-      text = await f.slice(0, PREVIEW_BYTES).text()
+      inspected = await inspectLoggerFile(f, profiles.value)
     } catch (e) {
-      error.value = `The file could not be read: ${(e as Error).message}`
-      return
-    }
-    const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/)
-    if (f.size > PREVIEW_BYTES) lines.pop() // cut off mid-line
-    const found = bestLayout(lines.slice(0, 400))
-    if (!found) {
-      error.value = lines.some((l) => l.trim() !== '') ? 'No line of channel names followed by rows of numbers was found in the first lines of the file.' : 'The file is empty.'
+      error.value = (e as Error).message
       header.value = []
       previewRows.value = []
       return
     }
-    const { layout } = found
-    delimiter.value = found.delimiter
+    const { layout, profile } = inspected
+    delimiter.value = inspected.delimiter
     header.value = layout.header
     preamble.value = layout.preamble
     unitCells.value = layout.units
-    loggerStart.value = preambleStart(preambleEntries(layout.preamble, found.delimiter))
-    previewRows.value = lines.slice(layout.firstDataLine - 1, layout.firstDataLine + 11).filter((l) => l.trim() !== '').map((l) => l.split(found.delimiter))
-    const profile = profiles.value.find((p) => p.headerSignature === headerSignature(header.value)) ?? null
+    loggerStart.value = inspected.loggerStart
+    previewRows.value = inspected.previewRows
     matchedProfile.value = profile
     if (profile) {
-      Object.assign(mapping, JSON.parse(JSON.stringify(profile.mapping)))
+      Object.assign(mapping, profileMappingFor(profile, inspected))
       profileName.value = profile.name
     } else {
       const guess = guessMapping(header.value)
@@ -76,14 +107,13 @@ export function useLoggerPreview(profiles: Ref<LoggerProfile[]>) {
       mapping.units = { ...mapping.units, ...guessUnits(header.value) }
       const timeIdx = header.value.indexOf(mapping.columns.time)
       if (timeIdx >= 0) mapping.units.time = detectTimeUnit(previewRows.value.map((r) => r[timeIdx] ?? ''))
+      mapping.delimiter = inspected.delimiter as LoggerMapping['delimiter']
+      mapping.layout = { headerLine: layout.headerLine, unitsRow: layout.unitsRow, unitsFromRow: layout.unitsRow && unitsReadable() }
+      if (mapping.layout.unitsFromRow) mapping.units = unitsInRow()
     }
+    mapping.decimal = detectDecimal(previewRows.value, delimiter.value)
     // every select shows a choice, "Not in this file" included (blanks are dropped on upload)
     for (const ch of LOGGER_CHANNELS) mapping.columns[ch] ??= ''
-    mapping.decimal = detectDecimal(previewRows.value, delimiter.value)
-    mapping.delimiter = found.delimiter as LoggerMapping['delimiter']
-    // this file's own layout, whatever the profile was saved from
-    mapping.layout = { headerLine: layout.headerLine, unitsRow: layout.unitsRow, unitsFromRow: layout.unitsRow && unitsReadable() }
-    if (mapping.layout.unitsFromRow) mapping.units = unitsInRow()
   }
 
   function unitCellsOfMapped() {

@@ -52,7 +52,7 @@ async function offsetOf(client: Client, url: string): Promise<number> {
 }
 
 function importQuery() {
-  return new URLSearchParams({ engineId: String(engineId), kind: 'practice', startedAt: '2031-05-17T10:00:00Z', fileName: 'fp3.csv', mapping: JSON.stringify(MAPPING) })
+  return new URLSearchParams({ engineId: String(engineId), kind: 'practice', startedAt: '2026-11-22T10:00:00Z', fileName: 'fp3.csv', mapping: JSON.stringify(MAPPING) })
 }
 
 async function importUpload(client: Client, url: string) {
