@@ -11,8 +11,12 @@ import { Server } from '@tus/server'
 import type { H3Event } from 'h3'
 import type { Actor } from './guard'
 
-/** The header the route sets (overwriting whatever a client sent) to tell the tus hooks who asks. */
-const ACTOR_HEADER = 'x-crankledger-actor'
+/** Who asks, per Node request, for the tus hooks (which see the request the tus server made of it). */
+const askedBy = new WeakMap<object, string>()
+function actorOf(req: Request): string | undefined {
+  const nodeReq = (req as { runtime?: { node?: { req?: object } } }).runtime?.node?.req
+  return nodeReq ? askedBy.get(nodeReq) : undefined
+}
 export const UPLOADS_PATH = '/api/uploads'
 
 let server: Server | null = null
@@ -35,10 +39,14 @@ function tus(): Server {
     path: UPLOADS_PATH,
     datastore: store,
     relativeLocation: true,
+    // same origin only: the app's own pages send the parts
+    allowedOrigins: [],
     maxSize: Number(useRuntimeConfig().loggerMaxBytes),
     async onUploadCreate(req, upload) {
       // the owner comes from the signed-in session, never from the client's metadata
-      return { metadata: { ...upload.metadata, owner: req.headers.get(ACTOR_HEADER) ?? '' } }
+      const owner = actorOf(req)
+      if (!owner) throw { status_code: 403, body: 'Forbidden' }
+      return { metadata: { ...upload.metadata, owner } }
     },
     async onIncomingRequest(req, uploadId) {
       if (req.method === 'POST') return
@@ -48,7 +56,7 @@ function tus(): Server {
       } catch {
         return // tus answers a missing upload itself (404, or 410 once expired)
       }
-      if (owner !== req.headers.get(ACTOR_HEADER)) throw notYours
+      if (!owner || owner !== actorOf(req)) throw notYours
     },
   })
   server = s
@@ -57,7 +65,7 @@ function tus(): Server {
 
 /** Hands a tus request (create, offset, part, end) to the tus server, as the signed-in actor. */
 export async function handleUpload(event: H3Event, actor: Actor): Promise<void> {
-  event.node.req.headers[ACTOR_HEADER] = String(actor.id)
+  askedBy.set(event.node.req, String(actor.id))
   await tus().handle(event.node.req, event.node.res)
   event._handled = true
 }

@@ -96,6 +96,9 @@ const unitShare = (cells: string[]) => cells.filter(looksLikeUnit).length / Math
 
 const numericShare = (cells: string[]) => cells.filter(isNumberCell).length / Math.max(1, cells.length)
 
+/** Rows under a candidate line of names that must all read as data. */
+const DATA_ROWS_SEEN = 3
+
 export interface DetectedLayout {
   /** file line of the channel names, 1 = first line */
   headerLine: number
@@ -116,7 +119,18 @@ export interface DetectedLayout {
  */
 export function detectLayout(lines: string[], delimiter: string): DetectedLayout | null {
   const cells = lines.map((l) => splitLine(l.replace(/\r$/, ''), delimiter))
-  const isData = (k: number, width: number) => cells[k] !== undefined && cells[k]!.length === width && numericShare(cells[k]!) >= 0.5
+  const isRow = (k: number, width: number) => cells[k] !== undefined && cells[k]!.length === width && numericShare(cells[k]!) >= 0.5
+  // data: the next rows (up to DATA_ROWS_SEEN, as many as the lines read hold) all of that width and mostly numbers,
+  // so that a metadata line such as "Time: 14:02:10" under "Date: ..." is not taken for a data row
+  const isData = (from: number, width: number) => {
+    let seen = 0
+    for (let k = from; k < Math.min(cells.length, from + DATA_ROWS_SEEN); k++) {
+      if (lines[k]!.trim() === '' && k === cells.length - 1) break // the empty string after a final line break
+      if (!isRow(k, width)) return false
+      seen++
+    }
+    return seen > 0
+  }
   for (let h = 0; h < Math.min(lines.length, LOGGER_MAX_PREAMBLE_LINES + 1); h++) {
     const width = cells[h]!.length
     if (width < 2 || numericShare(cells[h]!) > 0.2) continue

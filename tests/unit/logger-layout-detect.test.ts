@@ -24,6 +24,13 @@ describe('detectLayout', () => {
     expect(detectLayout(lines, ',')!.headerLine).toBe(2)
   })
 
+  it('a metadata line holding a time under one holding a date is not taken for data', () => {
+    const lines = ['Format\tgeneric export', 'Date\t2026-11-21', 'Time\t14:02:10', 'Time\tEngine RPM\tSpeed', 'ms\trpm\tmph', '0\t6000\t100', '10\t6000\t100', '20\t6000\t100', '']
+    const l = detectLayout(lines, '\t')!
+    expect(l.headerLine).toBe(4)
+    expect(l.unitsRow).toBe(true)
+  })
+
   it('no rows of numbers: nothing found', () => {
     expect(detectLayout(['just text', 'more text'], ',')).toBeNull()
   })
