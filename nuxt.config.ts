@@ -34,7 +34,11 @@ export default defineNuxtConfig({
     alertSchedule: '*/15 * * * *',
     alertsEnabled: true,
     storageDir: '.data/files',
-    loggerMaxBytes: 200 * 1024 * 1024,
+    // a 24-hour race at 100 Hz with 40-80 channels is 2-4 GB of CSV; files are streamed, never held whole
+    loggerMaxBytes: 8 * 1024 * 1024 * 1024,
+    // resumable uploads left unfinished expire, and a job removes them (node-cron, seconds field optional)
+    uploadExpiryHours: 24,
+    uploadCleanupSchedule: '17 * * * *',
     // Sign-in sessions (README "Security"): `maxAge` is the absolute lifetime in seconds, enforced
     // on the server (auth_sessions) and used as the cookie's lifetime; `sessionIdleTimeout` ends a
     // session after that many seconds without a request. 12 h and 30 min: OWASP ASVS 4.0 3.3.2, level 2.
@@ -44,6 +48,8 @@ export default defineNuxtConfig({
     // append the client's address to ('x-forwarded-for' or 'forwarded'). 0 hops: forwarded headers
     // are ignored (the client is the connection's peer). See server/utils/client-address.ts.
     trustedProxy: { header: 'x-forwarded-for', hops: 0 },
+    // bytes per part of a resumable upload: a dropped connection costs at most one part
+    public: { uploadPartBytes: 8 * 1024 * 1024 },
   },
   // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
   auth: { loadStrategy: 'none' },

@@ -12,6 +12,10 @@ export NUXT_SESSION_PASSWORD="test-session-password-0123456789abcdef"
 export NUXT_STORAGE_DIR="$root/.data-test/files"
 # A small upload cap so the size-limit test need not send 200 MiB.
 export NUXT_LOGGER_MAX_BYTES=4000000
+# Expired resumable uploads are looked for every 2 s, so the clean-up test need not wait an hour.
+export NUXT_UPLOAD_CLEANUP_SCHEDULE='*/2 * * * * *'
+# Small parts, so that the browser test's file goes up in several.
+export NUXT_PUBLIC_UPLOAD_PART_BYTES=65536
 
 bash db/mariadb.sh ensure-installed
 ensure_chromium

@@ -9,6 +9,8 @@ import { deliverOutbox, type DeliverResult, type MailTransport } from '../../tas
 import { runLifeCheck, type LifeCheckResult } from '../../tasks/life-check'
 import { mariadbLock } from '../../tasks/lock'
 import { scheduleProblem } from '../../tasks/schedule'
+import { runUploadCleanup } from '../../tasks/upload-cleanup'
+import { cleanUpUploads } from '../utils/uploads'
 import { fleetLife } from '../services/life'
 import { oilFindings } from '../services/oil-alerts'
 
@@ -23,6 +25,12 @@ export default defineNitroPlugin((nitroApp) => {
   }
   const enabled = String(config.alertsEnabled) !== 'false'
   const jobs = alertJobs()
+
+  // Expired resumable uploads go on every instance, alerts on or off (a removal twice is harmless).
+  const uploads = cron.schedule(String(config.uploadCleanupSchedule).trim(), () => runUploadCleanup({ cleanUp: () => cleanUpUploads(), log: (m) => console.log(`[crankledger] ${m}`) }), { name: 'crankledger-upload-cleanup', noOverlap: true })
+  nitroApp.hooks.hook('crankledger:draining', async () => {
+    await uploads.destroy()
+  })
 
   // An admin's explicit request runs even where the schedule is switched off.
   nitroApp.hooks.hook('crankledger:run-alerts', async (run) => {

@@ -1,8 +1,11 @@
-// Streaming import of a data-logger CSV (plain CSV with a header row) into a TraceSummary.
+// Streaming import of a data-logger CSV into a TraceSummary.
 // One pass over a Node stream: bytes are counted, hashed (SHA-256 of the file as sent) and
-// checked, decoded as UTF-8 (logger-csv/bytes.ts), split into rows by papaparse's parser
-// (here), converted (only the channels the analysis uses) into typed columns
-// (logger-csv/rows.ts), and handed to the trace analyzer a block per chunk. No row is kept.
+// checked (logger-csv/bytes.ts); the lines before the data (metadata lines, channel names, an
+// optional units row; logger-csv/head.ts) are read as text; the data rows are read straight
+// from the bytes (logger-csv/scan.ts), only the channels the analysis uses, into typed columns
+// (logger-csv/rows.ts) handed to the trace analyzer a block at a time. No row is kept.
+// papaparse's parser can read the rows instead (`rowReader: 'papaparse'`): the reference the
+// tests hold the byte scanner to.
 //
 // The figures are an aid to the supplier's service instructions, inspection and licensed
 // practice, never a substitute: a file that cannot be read with confidence is refused
@@ -12,19 +15,20 @@
 // channel (that channel is absent for the sample, as with mixed-rate loggers), throttle and
 // gear cells (not read).
 //
-// Rows are numbered as file lines, header = 1 (blank lines count). A quoted cell holding a
-// line break would shift later numbers; logger exports do not write those.
+// Rows are numbered as file lines, first line = 1 (blank and metadata lines count). A quoted
+// cell holding a line break would shift later numbers; logger exports do not write those.
 // Clock timestamps (units.time = 'clock') count from the first data row; a time of day
 // (no date) that falls back by more than 12 h is taken as passing midnight.
 
 import type { Readable } from 'node:stream'
-import Papa from 'papaparse'
-import type { Parser as PapaParser } from 'papaparse'
-import { LoggerMappingSchema, detectDelimiter, type LoggerMapping } from '../../shared/domain/logger-mapping'
+import { LoggerMappingSchema, type LoggerMapping } from '../../shared/domain/logger-mapping'
 import { createTraceAnalyzer, type TraceAnalyzer, type TraceConfig, type TraceSummary } from '../../shared/domain/trace'
-import { LF, LoggerBytes } from './logger-csv/bytes'
-import { LoggerImportError, SkippedRows, emptyFile, noDataRows, type LoggerImportWarning } from './logger-csv/errors'
-import { RowConverter, isBlank } from './logger-csv/rows'
+import { LoggerBytes } from './logger-csv/bytes'
+import { LoggerImportError, SkippedRows, noDataRows, type LoggerImportWarning } from './logger-csv/errors'
+import { HeadStage } from './logger-csv/head'
+import { PapaRows } from './logger-csv/papa-rows'
+import { RowConverter } from './logger-csv/rows'
+import { RowScanner } from './logger-csv/scan'
 
 export { LoggerImportError, MAX_LISTED_WARNINGS, type LoggerImportWarning } from './logger-csv/errors'
 
@@ -39,6 +43,10 @@ export interface LoggerImportResult {
   warnings: LoggerImportWarning[]
   delimiter: string
   header: string[]
+  /** metadata lines before the channel names (at most 50, each cut to 200 characters) */
+  preamble: string[]
+  /** the units the file was read in (the mapping's, or its units row's) */
+  units: LoggerMapping['units']
 }
 
 export interface LoggerImportOptions {
@@ -47,34 +55,34 @@ export interface LoggerImportOptions {
   maxBadRowShare?: number
   maxBadRows?: number
   onProgress?: (bytes: number) => void
+  /** 'scan' (the default) reads rows from the bytes; 'papaparse' is the reference */
+  rowReader?: 'scan' | 'papaparse'
 }
 
-export const DEFAULT_MAX_BYTES = 200 * 1024 * 1024
+export const DEFAULT_MAX_BYTES = 8 * 1024 * 1024 * 1024
 export const DEFAULT_MAX_LINE_LENGTH = 4096
 export const DEFAULT_MAX_BAD_ROW_SHARE = 0.01
 export const DEFAULT_MAX_BAD_ROWS = 1000
 
-/** The text stage: the header is the first non-blank line; the rows after it go through papaparse. */
+/** Bytes checked, then the head lines, then the data rows. */
 class LoggerCsvReader {
   private readonly mapping: LoggerMapping
   private readonly analyzer: TraceAnalyzer
   private readonly onProgress?: (bytes: number) => void
   private readonly input: LoggerBytes
   private readonly skipped: SkippedRows
-
-  private headerText = ''
-  private pending = ''
-  private headerLine = 0
-  header: string[] = []
-  delimiter = ','
-  private parser: PapaParser | null = null
+  private readonly head: HeadStage
+  private readonly rowReader: 'scan' | 'papaparse'
   private converter: RowConverter | null = null
+  private rows: RowScanner | PapaRows | null = null
 
   constructor(mapping: LoggerMapping, cfg: TraceConfig, opts: LoggerImportOptions) {
     this.mapping = mapping
     this.analyzer = createTraceAnalyzer(cfg)
     this.onProgress = opts.onProgress
+    this.rowReader = opts.rowReader ?? 'scan'
     this.input = new LoggerBytes(opts.maxBytes ?? DEFAULT_MAX_BYTES, opts.maxLineLength ?? DEFAULT_MAX_LINE_LENGTH)
+    this.head = new HeadStage(mapping)
     this.skipped = new SkippedRows({
       maxBadRows: opts.maxBadRows ?? DEFAULT_MAX_BAD_ROWS,
       maxBadRowShare: opts.maxBadRowShare ?? DEFAULT_MAX_BAD_ROW_SHARE,
@@ -85,33 +93,36 @@ class LoggerCsvReader {
   write(chunk: Buffer | string): void {
     const buf = typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk
     if (buf.length === 0) return
-    this.text(this.input.take(buf, this.completeLines(), this.parser !== null))
+    const bytes = this.input.take(buf, this.completeLines(), this.rows !== null)
+    if (this.rows) this.rows.take(bytes)
+    else {
+      const rest = this.head.take(bytes)
+      if (rest) {
+        this.startRows()
+        if (rest.length > 0) this.rows!.take(rest)
+      }
+    }
     this.onProgress?.(this.input.bytes)
   }
 
-  /**
-   * Lines handed on so far: every line before the one this chunk continues (the text
-   * stage keeps no complete line back between chunks).
-   */
+  /** Lines handed on so far (no complete line is kept back between chunks), to name a row. */
   private completeLines(): number {
-    return this.converter ? this.converter.line : this.headerLine
+    return this.converter ? this.converter.line : this.head.line
+  }
+
+  private startRows(): void {
+    const h = this.head.result!
+    this.converter = new RowConverter(this.mapping, h, this.analyzer, this.skipped)
+    this.rows = this.rowReader === 'scan' ? new RowScanner(this.converter, h.delimiter, h.newline) : new PapaRows(this.converter, h.delimiter, h.newline)
   }
 
   end(): LoggerImportResult {
-    const sha256 = this.input.finish(this.completeLines(), this.parser !== null)
-    if (!this.converter) {
-      // no line break after the first non-blank line
-      if (isBlank(this.headerText.replace(/[\r\n]/g, ''))) throw emptyFile()
-      this.startData(this.headerText.replace(/[\r\n]+$/, ''))
-      this.headerText = ''
-    }
+    const sha256 = this.input.finish(this.completeLines(), this.rows !== null)
+    if (!this.rows) this.startRowsAtEnd()
+    this.rows!.finish()
     const converter = this.converter!
-    if (this.pending.length > 0) {
-      const res = this.parser!.parse(this.pending, 0, false)
-      this.pending = ''
-      converter.take(res.data as string[][])
-    }
-    if (converter.rows === 0) throw noDataRows(this.headerLine)
+    const h = this.head.result!
+    if (converter.rows === 0) throw noDataRows(h.headerLine)
     this.skipped.checkShare(converter.rows)
     return {
       summary: this.analyzer.finish(),
@@ -120,62 +131,16 @@ class LoggerCsvReader {
       rows: converter.rows,
       skippedRows: this.skipped.count,
       warnings: this.skipped.warnings,
-      delimiter: this.delimiter,
-      header: this.header,
+      delimiter: h.delimiter,
+      header: h.header,
+      preamble: h.preamble,
+      units: converter.units,
     }
   }
 
-  private text(text: string): void {
-    if (this.parser) {
-      this.feed(text)
-      return
-    }
-    this.headerText += text
-    // the header is the first non-blank line
-    for (;;) {
-      const s = this.headerText
-      const lf = s.indexOf('\n')
-      const cr = s.indexOf('\r')
-      let end: number
-      let next: number
-      if (lf < 0 && cr < 0) return
-      if (cr >= 0 && (lf < 0 || cr < lf)) {
-        if (cr === s.length - 1 && lf < 0) return // wait: CR may be the first half of CRLF
-        end = cr
-        next = s.charCodeAt(cr + 1) === LF ? cr + 2 : cr + 1
-      } else {
-        end = lf
-        next = lf + 1
-      }
-      const line = s.slice(0, end)
-      this.headerLine++
-      this.headerText = s.slice(next)
-      if (isBlank(line)) continue
-      this.startData(line, s.slice(end, next))
-      const rest = this.headerText
-      this.headerText = ''
-      if (rest) this.feed(rest)
-      return
-    }
-  }
-
-  private startData(line: string, newline = '\n'): void {
-    if (this.headerLine === 0) this.headerLine = 1
-    this.delimiter = this.mapping.delimiter ?? detectDelimiter(line)
-    const cells = line.indexOf('"') >= 0
-      ? (Papa.parse<string[]>(line, { delimiter: this.delimiter, header: false }).data[0] ?? [])
-      : line.split(this.delimiter)
-    this.header = cells.map((c) => c.replace(/^\uFEFF/, '').trim())
-    this.converter = new RowConverter(this.mapping, this.header, this.headerLine, this.analyzer, this.skipped)
-    this.parser = new Papa.Parser({ delimiter: this.delimiter, newline: newline as '\n', header: false, skipEmptyLines: false })
-  }
-
-  private feed(text: string): void {
-    const input = this.pending.length > 0 ? this.pending + text : text
-    const res = this.parser!.parse(input, 0, true)
-    const cursor: number = res.meta.cursor
-    this.pending = cursor >= input.length ? '' : input.slice(cursor)
-    this.converter!.take(res.data as string[][])
+  private startRowsAtEnd(): void {
+    this.head.finish()
+    this.startRows()
   }
 }
 

@@ -2,7 +2,7 @@
 // file side by side), then one transaction; the raw file is kept for re-processing and is never
 // left behind when the import fails.
 import { createGunzip, createGzip } from 'node:zlib'
-import { Readable, Transform } from 'node:stream'
+import { PassThrough, Readable, Transform } from 'node:stream'
 import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
@@ -13,7 +13,8 @@ import { scopeQuery, type Actor } from '../utils/guard'
 import { announceLifeChanged } from '../utils/life-events'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
-import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
+import { fileSink, fileSource, newFileKey, removeFile } from '../utils/file-store'
+import { finishedUpload, removeUpload } from '../utils/uploads'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
@@ -44,41 +45,62 @@ export function traceConfigFor(t: EngineTypeDto, trackLengthKm: number | null, l
   }
 }
 
-/** Analyses the stream and keeps a gzip copy of the raw bytes (a fraction of the file's size). */
-async function analyzeAndCompress(input: Readable, mapping: LoggerMapping, cfg: TraceConfig, maxBytes: number) {
-  const gzip = createGzip({ level: 1, chunkSize: 1 << 20 })
-  const chunks: Buffer[] = []
-  gzip.on('data', (c: Buffer) => chunks.push(c))
-  const gzipDone = new Promise<void>((resolve, reject) => {
-    gzip.on('end', resolve)
-    gzip.on('error', reject)
-  })
-  // Every chunk goes to the compressor and on to the analyser; backpressure from either holds the input.
+/**
+ * Analyses the stream and keeps a gzip copy of the raw file under `fileKey`, streamed into
+ * storage as it is read (never whole in memory). A file sent gzip-compressed is kept as sent
+ * and decompressed only for the analysis, whose SHA-256 is then of the uncompressed content, as
+ * for a plain upload: one file sent both ways is one file. On failure nothing is left stored.
+ */
+async function analyzeAndStore(input: Readable, gzipped: boolean, fileKey: string, mapping: LoggerMapping, cfg: TraceConfig, maxBytes: number) {
+  const sink = await fileSink(fileKey)
+  const packer = gzipped ? new PassThrough({ highWaterMark: 1 << 20 }) : createGzip({ level: 1, chunkSize: 1 << 20 })
+  packer.pipe(sink.stream)
+  const stored = sink.done
+  stored.catch(() => {}) // awaited below; a failure before then is the analysis' to report
+  // Every chunk goes to the packer and on to the analyser; backpressure from either holds the input.
   const tee = new Transform({
-    // Room for a few MiB between reader, compressor and analyser so that none waits on the others.
+    // Room for a few MiB between reader, packer and analyser so that none waits on the others.
     highWaterMark: 4 << 20,
     transform(chunk: Buffer, _enc, done) {
-      if (gzip.write(chunk)) done(null, chunk)
-      else gzip.once('drain', () => done(null, chunk))
+      if (packer.write(chunk)) done(null, chunk)
+      else packer.once('drain', () => done(null, chunk))
     },
     flush(done) {
-      gzip.end()
+      packer.end()
       done()
     },
   })
   input.on('error', (e) => tee.destroy(e))
   input.pipe(tee)
+  let text: Readable = tee
+  if (gzipped) {
+    const unpack = createGunzip({ chunkSize: 1 << 16 })
+    tee.on('error', (e) => unpack.destroy(e))
+    unpack.on('error', () => {}) // read by the analysis below
+    text = tee.pipe(unpack)
+  }
   try {
-    const result = await analyzeLoggerStream(tee, mapping, cfg, { maxBytes })
-    await gzipDone
-    return { result, compressed: Buffer.concat(chunks) }
+    const result = await analyzeLoggerStream(text, mapping, cfg, { maxBytes })
+    await stored
+    return result
   } catch (error) {
     // Drain what the client still sends so that it receives the answer.
     input.unpipe(tee)
     input.resume()
-    gzip.destroy()
-    throw error
+    packer.destroy()
+    sink.stream.destroy()
+    await stored.catch(() => {})
+    await removeFile(fileKey).catch(() => {})
+    throw gzipError(error) ?? error
   }
+}
+
+/** zlib's errors for a corrupt or cut-off gzip stream, as a refusal that says so. */
+function gzipError(error: unknown): LoggerImportError | null {
+  const code = (error as { code?: string })?.code ?? ''
+  if (!code.startsWith('Z_') && code !== 'ERR_ZLIB_INITIALIZATION_FAILED') return null
+  const what = code === 'Z_BUF_ERROR' ? 'it ends before the compressed data does (truncated)' : `the compressed data is corrupt (${(error as Error).message})`
+  return new LoggerImportError('bad_gzip', `The file is not a readable gzip stream: ${what}`)
 }
 
 function importErrorToHttp(error: unknown): never {
@@ -128,6 +150,8 @@ function sessionFields(r: LoggerImportResult) {
       warnings: r.warnings,
       delimiter: r.delimiter,
       header: r.header,
+      preamble: r.preamble,
+      units: r.units,
       distanceSource: s.distanceSource,
       gaps: s.gaps.slice(0, 100),
       gapCount: (s as any).gapCount ?? s.gaps.length,
@@ -142,6 +166,8 @@ export interface LoggerUpload {
   /** The request's content-length, 0 when not given. */
   declaredBytes: number
   maxBytes: number
+  /** the body is the file gzip-compressed (content-encoding: gzip) */
+  gzipped?: boolean
 }
 
 /** Stores a streamed logger file as a session, then announces that life changed (the life check runs in the background). */
@@ -150,12 +176,29 @@ export async function importLoggerFile(db: Knex, actor: Actor, meta: ImportMeta,
   if (declaredBytes > maxBytes) {
     throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(declaredBytes / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
   }
-  const result = await storeLoggerFile(db, actor, meta, upload.body, maxBytes)
+  const result = await storeLoggerFile(db, actor, meta, upload.body, maxBytes, upload.gzipped ?? false)
   announceLifeChanged()
   return result
 }
 
-async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: Readable, maxBytes: number) {
+/**
+ * Imports a finished resumable upload (server/utils/uploads.ts) as a session, the same way as a
+ * streamed one; the upload is removed once the session is stored. When the import is refused
+ * the upload stays (to be imported again with a corrected mapping) until it expires.
+ */
+export async function importFinishedUpload(db: Knex, actor: Actor, uploadId: string, meta: ImportMeta, maxBytes: number) {
+  const upload = await finishedUpload(uploadId, actor)
+  if (!upload) notFound('Upload')
+  if (upload.size > maxBytes) {
+    throw createError({ statusCode: 413, statusMessage: 'Payload Too Large', message: `The file is ${(upload.size / 1048576).toFixed(0)} MiB; the limit is ${(maxBytes / 1048576).toFixed(0)} MiB` })
+  }
+  const result = await storeLoggerFile(db, actor, meta, upload.open(), maxBytes, upload.gzipped)
+  await removeUpload(uploadId)
+  announceLifeChanged()
+  return result
+}
+
+async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: Readable, maxBytes: number, gzipped: boolean) {
   // Check what can be checked before reading the file: engine, event, role scope.
   const engine = await engineRowFor(db, actor, meta.engineId)
   const [type] = await loadEngineTypes(db, (qb) => qb.where('id', engine.engine_type_id))
@@ -167,16 +210,14 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
   }
   const cfg = traceConfigFor(type!, trackLengthKm, meta.laps)
 
-  let analysed: Awaited<ReturnType<typeof analyzeAndCompress>>
+  const fileKey = newFileKey('logger', 'csv.gz')
+  let result: LoggerImportResult
   try {
-    analysed = await analyzeAndCompress(body, meta.mapping, cfg, maxBytes)
+    result = await analyzeAndStore(body, gzipped, fileKey, meta.mapping, cfg, maxBytes)
   } catch (error) {
     importErrorToHttp(error)
   }
-  const { result, compressed } = analysed
   const f = sessionFields(result)
-  const fileKey = newFileKey('logger', 'csv.gz')
-  let stored = false
   try {
     return await db.transaction(async (trx) => {
       // A duplicate is looked for only among the sessions this user may see, and named only then.
@@ -189,8 +230,6 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
       }
       const input = { engineId: meta.engineId, eventId: meta.eventId, kind: meta.kind, startedAt: meta.startedAt, runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, histogram: f.histogram, overRevs: f.overRevs, confirmDate: meta.confirmDate ?? false }
       const { engine: locked, type: t } = await checkSession(trx, actor, input, { exactBands: false })
-      await putFile(fileKey, compressed)
-      stored = true
       const id = await insertSession(trx, actor, input, locked, t, {
         ...f.extras,
         source: 'logger',
@@ -202,7 +241,8 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
       return { session: toSessionDto(await sessionById(trx, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length }
     })
   } catch (error) {
-    if (stored) await removeFile(fileKey).catch(() => {})
+    // the file was stored before the transaction: nothing of this import may stay
+    await removeFile(fileKey).catch(() => {})
     // Two imports of one file into one scope at the same moment: the unique index keeps one.
     if ((error as { code?: string }).code === 'ER_DUP_ENTRY' && String((error as Error).message).includes('sessions_file_scope_sha256_unique')) {
       conflict('This file was imported by another request a moment ago')
@@ -251,7 +291,7 @@ export async function reprocessSessionsWithoutMoments(db: Knex, maxBytes: number
 async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxBytes: number) {
   const sessionId: number = row.id
   if (row.source !== 'logger' || !row.file_key) badRequest('Only sessions imported from a logger file can be re-processed')
-  const raw = await getFile(row.file_key)
+  const raw = await fileSource(row.file_key)
   if (!raw) conflict('The stored logger file is missing; the session cannot be re-processed')
   const details = typeof row.details === 'string' ? JSON.parse(row.details) : row.details
   const engine = await db('engines').where('id', row.engine_id).first()
@@ -262,8 +302,8 @@ async function reprocessStoredFile(db: Knex, actor: Actor | null, row: any, maxB
   try {
     // decompressed as it is read: a 6 h file is never whole in memory
     const unpacked = createGunzip()
-    unpacked.end(raw)
-    result = await analyzeLoggerStream(unpacked, details.mapping, cfg, { maxBytes })
+    raw.on('error', (e) => unpacked.destroy(e))
+    result = await analyzeLoggerStream(raw.pipe(unpacked), details.mapping, cfg, { maxBytes })
   } catch (error) {
     importErrorToHttp(error)
   }

@@ -185,7 +185,7 @@ export async function sessionView(db: Knex, actor: Actor, id: number): Promise<S
   const details = json<Record<string, any> | null>(row.details, null)
   return {
     session: toSessionDto(row),
-    details: details && { overview: details.overview ?? [], warnings: details.warnings ?? [], skippedRows: details.skippedRows ?? 0, rows: details.rows ?? null, gaps: details.gaps ?? [], gapCount: details.gapCount ?? 0, distanceSource: details.distanceSource ?? null },
+    details: details && { overview: details.overview ?? [], warnings: details.warnings ?? [], skippedRows: details.skippedRows ?? 0, rows: details.rows ?? null, gaps: details.gaps ?? [], gapCount: details.gapCount ?? 0, distanceSource: details.distanceSource ?? null, loggerMetadata: Array.isArray(details.preamble) ? details.preamble : [] },
     chart: sessionChart(row, toSessionDto(row)),
     eqErrorBound: exact ? Math.max(0, ...cost.map((c) => momentsRelativeErrorBound(c.damageExponent))) : null,
     cost,

@@ -8,6 +8,9 @@ import { toBar, toCelsius, toKmh } from './units'
 export const LOGGER_CHANNELS = ['time', 'rpm', 'speed', 'oilTemp', 'oilPressure', 'waterTemp', 'throttle', 'gear'] as const
 export type LoggerChannel = typeof LOGGER_CHANNELS[number]
 
+/** Metadata lines an export may write before the channel names. */
+export const LOGGER_MAX_PREAMBLE_LINES = 200
+
 export const LOGGER_DELIMITERS = [',', ';', '\t', '|'] as const
 export type LoggerDelimiter = typeof LOGGER_DELIMITERS[number]
 
@@ -24,13 +27,23 @@ export const LoggerMappingSchema = z.object({
     gear: line().optional(),
   }),
   units: z.object({
-    time: z.enum(['seconds', 'clock']).default('seconds'),
+    time: z.enum(['seconds', 'ms', 'clock']).default('seconds'),
     speed: z.enum(['kmh', 'mph']).default('kmh'),
     temperature: z.enum(['C', 'F']).default('C'),
     pressure: z.enum(['bar', 'kPa', 'psi']).default('bar'),
   }),
   delimiter: z.enum(LOGGER_DELIMITERS).optional(), // detected when absent
   decimal: z.enum(['.', ',']).default('.'),
+  // Where the channel names sit in an export that writes metadata lines first. Absent: the
+  // names are the first non-blank line and no units row follows.
+  layout: z.object({
+    /** file line of the channel names (1 = first line); the lines before it are the preamble */
+    headerLine: z.number().int().min(1).max(LOGGER_MAX_PREAMBLE_LINES + 1),
+    /** the line after the names holds a unit per column */
+    unitsRow: z.boolean().default(false),
+    /** units of the mapped channels are read from that row (a blank cell keeps the mapping's unit) */
+    unitsFromRow: z.boolean().default(false),
+  }).optional(),
 })
 export type LoggerMapping = z.infer<typeof LoggerMappingSchema>
 export type LoggerUnits = LoggerMapping['units']
@@ -293,7 +306,7 @@ export function parseClock(s: string): number | null {
 }
 
 /** 'clock' when the sample time cells read as clock timestamps and not as plain numbers. */
-export function detectTimeUnit(sampleCells: string[]): 'seconds' | 'clock' {
+export function detectTimeUnit(sampleCells: string[]): 'seconds' | 'ms' | 'clock' {
   let clock = 0
   let numeric = 0
   for (const c of sampleCells) {

@@ -29,3 +29,6 @@ export const LoggerProfileSchema = z.object({
   header: z.array(line().max(200)).min(2).max(400),
   mapping: LoggerMappingSchema,
 })
+
+/** A resumable upload's id, as the tus server names it (16 random bytes in hex). */
+export const UploadIdParams = z.object({ id: line().regex(/^[0-9a-f]{32}$/, 'must be an upload id') })

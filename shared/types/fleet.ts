@@ -259,6 +259,8 @@ export interface SessionViewDto {
     gaps: { atS: number; seconds: number }[]
     gapCount: number
     distanceSource: string | null
+    /** metadata lines the logger wrote before the channel names */
+    loggerMetadata: string[]
   } | null
   /** the trace over time for the charts (downsampled, with the over-rev and low oil pressure markers); null without a trace */
   chart: TraceChart | null

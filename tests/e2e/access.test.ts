@@ -22,7 +22,7 @@ function apiRoutes(): Route[] {
       const full = join(dir, name)
       if (statSync(full).isDirectory()) walk(full)
       else {
-        const m = /^(.*)\.(get|post|put|patch|delete)\.ts$/.exec(relative(root, full))
+        const m = /^(.*)\.(get|head|post|put|patch|delete)\.ts$/.exec(relative(root, full))
         if (!m) throw new Error(`route file without a method suffix: ${full}`)
         const path = `/api/${m[1]!.replace(/(^|\/)index$/, '')}`.replace(/\/$/, '')
         out.push({ method: m[2]!.toUpperCase(), path, file: relative(process.cwd(), full) })
@@ -130,7 +130,7 @@ describe('every API route goes through the guard', () => {
   })
 
   it.each(routes.filter((r) => !PUBLIC.has(`${r.method} ${r.path}`)).map((r) => [`${r.method} ${r.path}`, r] as const))('%s answers 401 without a session', async (_name, r) => {
-    const res = await new Client().request(r.method, concrete(r.path), r.method === 'GET' || r.method === 'DELETE' ? undefined : {})
+    const res = await new Client().request(r.method, concrete(r.path), r.method === 'GET' || r.method === 'HEAD' || r.method === 'DELETE' ? undefined : {})
     expect(res.status, r.file).toBe(401)
   })
 
@@ -164,7 +164,7 @@ describe('another team cannot change team A\'s records', () => {
   it.each(writes.map((r) => [`${r.method} ${r.path}`, r] as const))('%s is refused for a member of another team', async (_n, r) => {
     const before = await db()('audit_log').count({ n: '*' }).first()
     for (const other of ['otherManager', 'otherRace'] as const) {
-      const res = await clients[other]!.request(r.method, concrete(r.path), r.method === 'DELETE' ? undefined : {})
+      const res = await clients[other]!.request(r.method, concrete(r.path), r.method === 'DELETE' || r.method === 'HEAD' ? undefined : {})
       expect([400, 403, 404, 409], `${other} ${r.method} ${concrete(r.path)} answered ${res.status}`).toContain(res.status)
     }
     const after = await db()('audit_log').count({ n: '*' }).first()

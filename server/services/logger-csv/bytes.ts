@@ -1,5 +1,6 @@
 // The byte stage of a logger import: every chunk is counted against the size cap, hashed
-// (SHA-256 of the file as sent), checked for NUL bytes and line length, and decoded as UTF-8.
+// (SHA-256 of the file as sent), checked for NUL bytes, line length and UTF-8, and handed on
+// as bytes that end on a character boundary (a leading BOM removed).
 
 import { isUtf8 } from 'node:buffer'
 import { createHash } from 'node:crypto'
@@ -33,10 +34,10 @@ export class LoggerBytes {
   }
 
   /**
-   * Checks one chunk and answers its text (without a leading BOM). `line`: lines handed on
+   * Checks one chunk and answers its bytes, whole characters only (without a leading BOM). `line`: lines handed on
    * before this chunk, to name a row; `headerRead`: bad UTF-8 past the header is named by row.
    */
-  take(buf: Buffer, line: number, headerRead: boolean): string {
+  take(buf: Buffer, line: number, headerRead: boolean): Buffer {
     const before = this.bytes
     if (before + buf.length > this.maxBytes) throw fileTooLarge(this.maxBytes)
     this.bytes += buf.length
@@ -80,10 +81,10 @@ export class LoggerBytes {
     }
   }
 
-  // isUtf8 (simdutf) plus toString is several times faster than a fatal TextDecoder here.
+  // isUtf8 (simdutf) is several times faster than a fatal TextDecoder here.
   // A character split across chunks is carried; it sits on the unfinished line, so the
   // chunk's first line is still the carry's line.
-  private decode(chunk: Buffer, byteOffset: number, line: number, headerRead: boolean): string {
+  private decode(chunk: Buffer, byteOffset: number, line: number, headerRead: boolean): Buffer {
     let buf = chunk
     if (this.carry) {
       buf = Buffer.concat([this.carry, chunk])
@@ -105,12 +106,11 @@ export class LoggerBytes {
       buf = buf.subarray(0, cut)
     }
     if (!isUtf8(buf)) this.throwBadUtf8(byteOffset, line + this.linesBeforeBadUtf8(buf), headerRead)
-    let text = buf.toString('utf8')
-    if (!this.decodedAny && text.length > 0) {
+    if (!this.decodedAny && buf.length > 0) {
       this.decodedAny = true
-      if (text.charCodeAt(0) === 0xfeff) text = text.slice(1)
+      if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) buf = buf.subarray(3)
     }
-    return text
+    return buf
   }
 
   /** Only on failure: complete lines of buf before the one holding the bad bytes. */

@@ -11,6 +11,11 @@
 //   missing_column       a mapped column is not in the header; column                   400
 //   duplicate_column     a mapped column name appears twice in the header; column       400
 //   no_data_rows         a header and no data rows                                      400
+//   no_header            the layout puts the channel names on a line the file never reaches 400
+//   unknown_unit         the units row names a unit not read, for a mapped channel; row   400
+//   unclosed_quote       a quoted cell that runs on for more than 1 MiB; row              400
+//   bad_gzip             a compressed upload whose gzip stream is corrupt or cut off      400
+//                        (raised by the import service, which decompresses)
 //   time_backwards       a timestamp earlier than the previous row's; row, column       400
 //   time_duplicate       a timestamp equal to the previous row's; row, column           400
 //   too_many_bad_rows    more skipped rows than maxBadRows (default 1000) or than
@@ -62,6 +67,15 @@ export const lineTooLong = (row: number, maxLineLength: number) =>
 export const emptyFile = () => new LoggerImportError('empty_file', 'The file is empty')
 
 export const noDataRows = (headerLine: number) => new LoggerImportError('no_data_rows', 'The file has a header but no data rows', { row: headerLine })
+
+export const noHeader = (headerLine: number, lastLine: number) =>
+  new LoggerImportError('no_header', `The channel names should be on line ${headerLine}, but the file ends at line ${lastLine}`, { row: lastLine })
+
+export const unknownUnit = (row: number, column: string, cell: string, choices: string) =>
+  new LoggerImportError('unknown_unit', `Row ${row}, column "${column}": unit ${quoteCell(cell)} is not one that can be read (${choices})`, { row, column })
+
+export const unclosedQuote = (row: number) =>
+  new LoggerImportError('unclosed_quote', `Row ${row}: a quoted cell is not closed`, { row })
 
 export const missingColumn = (column: string, channel: string) =>
   new LoggerImportError('missing_column', `Column "${column}" (mapped to ${channel}) is not in the header`, { row: 1, column })

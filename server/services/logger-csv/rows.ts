@@ -1,11 +1,14 @@
-// Row conversion for a logger import: the header's columns resolved for the mapped channels,
-// and each parsed row's analysed cells read straight into the typed columns of a TraceBlock
-// (units converted, clock times counted from the first row), a block per parsed chunk.
+// Row conversion for a logger import: the header's columns resolved for the mapped channels
+// (units from the mapping, or from the file's units row where the mapping says so), and each
+// row's analysed cells read straight into the typed columns of a TraceBlock (units converted,
+// clock times counted from the first row). The byte scanner (scan.ts) fills the same block
+// for rows it reads itself and hands every other row here as cells (takeRow).
 
 import { LOGGER_CHANNELS, parseClock, parseDecimal, type LoggerChannel, type LoggerMapping } from '../../../shared/domain/logger-mapping'
 import { toBar, toCelsius, toKmh } from '../../../shared/domain/units'
 import { TRACE_MAX_RPM, TRACE_MAX_SPEED, createTraceBlock, type TraceAnalyzer, type TraceBlock } from '../../../shared/domain/trace'
-import { duplicateColumn, missingColumn, quoteCell, timeOrderError, type SkippedRows } from './errors'
+import { unitsFromRow, UNIT_CHOICES } from '../../../shared/domain/logger-layout'
+import { duplicateColumn, missingColumn, quoteCell, timeOrderError, unknownUnit, type SkippedRows } from './errors'
 import { CR } from './bytes'
 
 /** Spaces, tabs and a CR only (a CR LF line split at its LF keeps its CR). */
@@ -42,52 +45,67 @@ function resolveColumns(header: string[], columns: LoggerMapping['columns']): Re
   return out
 }
 
+
+/** Rows per block handed to the analyzer. */
+export const BLOCK_ROWS = 8192
+
+export interface HeaderInfo {
+  header: string[]
+  /** file line of the channel names */
+  headerLine: number
+  /** the units row's cells, when the layout has one */
+  unitCells: string[] | null
+}
+
 /**
  * Throttle and gear columns must exist when mapped, but they feed no figure yet, so their
  * cells are not read: a glitch there does not cost a good rpm sample.
+ * Fields are public for the byte scanner, which keeps them in locals while it runs.
  */
 export class RowConverter {
-  private readonly mapping: LoggerMapping
-  private readonly header: string[]
-  private readonly analyzer: TraceAnalyzer
-  private readonly skipped: SkippedRows
-  private readonly ncol: number
-  private readonly iTime: number
-  private readonly iRpm: number
-  private readonly iSpeed: number
-  private readonly iOilTemp: number
-  private readonly iOilPressure: number
-  private readonly iWaterTemp: number
-  private readonly decimalCode: number
-  private readonly clock: boolean
+  readonly units: LoggerMapping['units']
+  readonly header: string[]
+  readonly analyzer: TraceAnalyzer
+  readonly skipped: SkippedRows
+  readonly ncol: number
+  readonly iTime: number
+  readonly iRpm: number
+  readonly iSpeed: number
+  readonly iOilTemp: number
+  readonly iOilPressure: number
+  readonly iWaterTemp: number
+  readonly decimalCode: number
+  readonly clock: boolean
+  readonly ms: boolean
   // Mapped numeric channels other than time: column index and the block column it fills.
-  private valueIndex = new Int32Array(0)
-  private valueColumns: Float64Array[] = []
+  readonly valueIndex: Int32Array
+  readonly valueColumns: Float64Array[]
 
-  // one block of converted samples per parsed chunk, reused; unmapped channels stay NaN
-  private block: TraceBlock = createTraceBlock(0)
+  // one block of converted samples, reused; unmapped channels stay NaN
+  readonly block: TraceBlock = createTraceBlock(BLOCK_ROWS)
+  /** samples in the block */
+  k = 0
 
   /** file line of the last row taken */
   line: number
   /** data rows read, skipped ones included, blank lines not */
   rows = 0
-  private accepted = 0
-  private lastT = NaN // read only once a row is accepted
-  private lastTLine = 0
+  accepted = 0
+  lastT = NaN // read only once a row is accepted
+  lastTLine = 0
   private clockStarted = false
   private clockT0 = 0
   private clockDayOffset = 0
   private lastClockRaw = 0
 
-  /** `headerLine`: the header's file line; throws when a mapped column is missing or named twice. */
-  constructor(mapping: LoggerMapping, header: string[], headerLine: number, analyzer: TraceAnalyzer, skipped: SkippedRows) {
-    this.mapping = mapping
+  /** Throws when a mapped column is missing or named twice, or the units row names a unit not read. */
+  constructor(mapping: LoggerMapping, head: HeaderInfo, analyzer: TraceAnalyzer, skipped: SkippedRows) {
+    const { header, headerLine, unitCells } = head
     this.header = header
     this.analyzer = analyzer
     this.skipped = skipped
     this.ncol = header.length
     this.decimalCode = mapping.decimal === ',' ? 44 : 46
-    this.clock = mapping.units.time === 'clock'
     const idx = resolveColumns(header, mapping.columns)
     this.iTime = idx.time
     this.iRpm = idx.rpm
@@ -95,15 +113,24 @@ export class RowConverter {
     this.iOilTemp = idx.oilTemp
     this.iOilPressure = idx.oilPressure
     this.iWaterTemp = idx.waterTemp
+    this.units = mapping.units
     this.line = headerLine
-    this.growBlock(4096) // rows of a 64 KiB chunk and then some: no regrowth in the usual case
-  }
-
-  /** A new, larger block (a chunk has more rows than the last one), with its column list. */
-  private growBlock(capacity: number): void {
-    const b = createTraceBlock(capacity)
+    if (unitCells) {
+      this.line++
+      if (mapping.layout?.unitsFromRow) {
+        const at = (i: number) => (i >= 0 ? unitCells[i] ?? '' : undefined)
+        const read = unitsFromRow(mapping.units, { time: at(idx.time), speed: at(idx.speed), oilTemp: at(idx.oilTemp), waterTemp: at(idx.waterTemp), oilPressure: at(idx.oilPressure) })
+        if (read.unknown) {
+          const col = idx[read.unknown.channel]
+          throw unknownUnit(this.line, header[col]!, read.unknown.cell, UNIT_CHOICES[read.unknown.channel])
+        }
+        this.units = read.units
+      }
+    }
+    this.clock = this.units.time === 'clock'
+    this.ms = this.units.time === 'ms'
+    const b = this.block
     for (const col of [b.speedKmh, b.oilTempC, b.oilPressureBar, b.waterTempC]) col.fill(NaN)
-    this.block = b
     const pairs: [number, Float64Array][] = [
       [this.iRpm, b.rpm],
       [this.iSpeed, b.speedKmh],
@@ -116,69 +143,67 @@ export class RowConverter {
     this.valueColumns = mapped.map(([, col]) => col)
   }
 
-  /**
-   * Hot loop: one pass per row, numbers parsed straight into the block's columns (one
-   * parse call site, so it is inlined and nothing is boxed), then the block goes to the
-   * analyzer in one call. A row whose analysed cells all read as numbers goes straight
-   * through; anything else takes rowProblem() to be told apart (a blank optional cell is
-   * fine, the rest is reported).
-   */
+  /** Rows split into cells (papaparse, or a row the byte scanner does not read itself). */
   take(rows: string[][]): void {
-    if (rows.length > this.block.t.length) this.growBlock(rows.length)
-    const ncol = this.ncol
-    const dec = this.decimalCode
-    const clock = this.clock
-    const iTime = this.iTime
-    const valueIndex = this.valueIndex
-    const valueColumns = this.valueColumns
-    const nvalues = valueIndex.length
-    const { t: T, rpm: RPM, speedKmh: SPEED } = this.block
-    let k = 0
-    let accepted = this.accepted
-    let lastT = this.lastT
-    let lastTLine = this.lastTLine
-    for (let r = 0; r < rows.length; r++) {
-      const row = rows[r]!
-      const line = ++this.line
-      if (row.length !== ncol) {
-        if (row.length === 1 && isBlank(row[0]!)) continue
-        this.rows++
-        this.skipped.row(line, undefined, `Row ${line}: ${row.length} field${row.length === 1 ? '' : 's'}, the header has ${ncol}`, this.rows)
-        continue
-      }
-      this.rows++
+    for (let r = 0; r < rows.length; r++) this.takeRow(rows[r]!)
+  }
 
-      let t: number
-      if (clock) {
-        const raw = parseClock(row[iTime]!)
-        t = raw === null ? NaN : this.clockSeconds(raw)
-      } else t = parseDecimal(row[iTime]!, dec)
-      let unreadable = t !== t
-      for (let c = 0; c < nvalues; c++) {
-        const v = parseDecimal(row[valueIndex[c]!]!, dec)
-        valueColumns[c]![k] = v
-        if (v !== v) unreadable = true
-      }
-      const rpm = RPM[k]!
-      const speed = SPEED[k]!
-      if (unreadable || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 || speed > TRACE_MAX_SPEED) {
-        if (this.rowProblem(row, line)) continue
-      }
-      if (accepted > 0 && t <= lastT) throw timeOrderError(this.header[iTime]!, row[iTime]!, t, line, lastT, lastTLine)
-      T[k++] = t
-      accepted++
-      lastT = t
-      lastTLine = line
+  /** One row of cells: read into the block, skipped with a warning, or refused. */
+  takeRow(row: string[]): void {
+    const line = ++this.line
+    if (row.length !== this.ncol) {
+      if (row.length === 1 && isBlank(row[0]!)) return
+      this.rows++
+      this.skipped.row(line, undefined, `Row ${line}: ${row.length} field${row.length === 1 ? '' : 's'}, the header has ${this.ncol}`, this.rows)
+      return
     }
-    this.accepted = accepted
-    this.lastT = lastT
-    this.lastTLine = lastTLine
-    this.convertUnits(k)
-    this.analyzer.pushBlock(this.block, k)
+    this.rows++
+    const dec = this.decimalCode
+    const k = this.k
+    let t: number
+    if (this.clock) {
+      const raw = parseClock(row[this.iTime]!)
+      t = raw === null ? NaN : this.clockSeconds(raw)
+    } else {
+      t = parseDecimal(row[this.iTime]!, dec)
+      if (this.ms) t = t / 1000
+    }
+    let unreadable = t !== t
+    const valueIndex = this.valueIndex
+    for (let c = 0; c < valueIndex.length; c++) {
+      const v = parseDecimal(row[valueIndex[c]!]!, dec)
+      this.valueColumns[c]![k] = v
+      if (v !== v) unreadable = true
+    }
+    const rpm = this.block.rpm[k]!
+    const speed = this.block.speedKmh[k]!
+    if (unreadable || rpm < 0 || rpm > TRACE_MAX_RPM || speed < 0 || speed > TRACE_MAX_SPEED) {
+      if (this.rowProblem(row, line)) return
+    }
+    this.accept(t, line, row[this.iTime]!)
+  }
+
+  /** The sample at block index k is good: checks the time order and keeps it. */
+  accept(t: number, line: number, timeCell: string): void {
+    if (this.accepted > 0 && t <= this.lastT) throw timeOrderError(this.header[this.iTime]!, timeCell, t, line, this.lastT, this.lastTLine)
+    this.block.t[this.k++] = t
+    this.accepted++
+    this.lastT = t
+    this.lastTLine = line
+    if (this.k === BLOCK_ROWS) this.flush()
+  }
+
+  /** Hands the block's samples to the analyzer (units converted) and starts a new block. */
+  flush(): void {
+    const count = this.k
+    if (count === 0) return
+    this.convertUnits(count)
+    this.analyzer.pushBlock(this.block, count)
+    this.k = 0
   }
 
   private convertUnits(count: number): void {
-    const { speed, temperature, pressure } = this.mapping.units
+    const { speed, temperature, pressure } = this.units
     const b = this.block
     if (speed !== 'kmh') for (let i = 0; i < count; i++) b.speedKmh[i] = toKmh(b.speedKmh[i]!, speed)
     if (temperature !== 'C') {
@@ -191,7 +216,7 @@ export class RowConverter {
   }
 
   /** Reports the first unreadable analysed cell of the row and returns true; false when the row is fine after all. */
-  private rowProblem(row: string[], line: number): boolean {
+  rowProblem(row: string[], line: number): boolean {
     const dec = this.decimalCode
     const tCell = row[this.iTime]!
     if (isBlank(tCell)) return this.badCell(line, this.iTime, 'the time is empty')
@@ -222,7 +247,7 @@ export class RowConverter {
   }
 
   /** Seconds from the first data row; a time of day that falls back > 12 h passed midnight. */
-  private clockSeconds(raw: number): number {
+  clockSeconds(raw: number): number {
     if (!this.clockStarted) {
       this.clockStarted = true
       this.clockT0 = raw
