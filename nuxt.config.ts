@@ -44,6 +44,9 @@ export default defineNuxtConfig({
     // append the client's address to ('x-forwarded-for' or 'forwarded'). 0 hops: forwarded headers
     // are ignored (the client is the connection's peer). See server/utils/client-address.ts.
     trustedProxy: { header: 'x-forwarded-for', hops: 0 },
+    // The payment service (invoices) through its SDK; locally and in tests the fake that
+    // scripts/start.sh and scripts/test.sh start on loopback (scripts/payment-fake.ts).
+    payment: { apiKey: 'sk_test_crankledger_local', host: '127.0.0.1', port: 12111, protocol: 'http', webhookSecret: 'whsec_crankledger_local_secret' },
   },
   // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
   auth: { loadStrategy: 'none' },

@@ -14,6 +14,9 @@ import * as oilNewReference from './20261203_03_c_oil_new_reference'
 import * as authSessions from './20261203_02_a_auth_sessions'
 import * as signInAddresses from './20261203_02_b_sign_in_addresses'
 import * as sessionFileScope from './20261203_02_c_session_file_scope'
+import * as billingContacts from './20261204_06_a_billing_contacts'
+import * as leaseContracts from './20261204_06_b_lease_contracts'
+import * as statements from './20261204_06_c_statements'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -32,6 +35,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203_02_a_auth_sessions': authSessions,
   '20261203_02_b_sign_in_addresses': signInAddresses,
   '20261203_02_c_session_file_scope': sessionFileScope,
+  '20261204_06_a_billing_contacts': billingContacts,
+  '20261204_06_b_lease_contracts': leaseContracts,
+  '20261204_06_c_statements': statements,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
