@@ -11,6 +11,7 @@ const ALL: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_enginee
 const SUPPLIER: Role[] = ['admin', 'supplier_engineer']
 const WRITERS: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer']
 const TEARDOWN: Role[] = ['admin', 'supplier_engineer', 'mechanic']
+const STATEMENT_READERS: Role[] = ['admin', 'supplier_engineer', 'team_manager']
 
 interface Route { method: string; path: string; file: string }
 
@@ -33,7 +34,8 @@ function apiRoutes(): Route[] {
   return out
 }
 
-const PUBLIC = new Set(['POST /api/auth/login', 'POST /api/auth/logout', 'GET /api/health'])
+// The payment webhook is admitted by the service's signature, not a session (tests/e2e/billing.test.ts).
+const PUBLIC = new Set(['POST /api/auth/login', 'POST /api/auth/logout', 'GET /api/health', 'POST /api/billing/webhook'])
 
 /** Which roles may read each GET route (expect 200 on their own organisation's records; everyone else 403). */
 const READ_ROLES: Record<string, Role[]> = {
@@ -41,6 +43,10 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/admin/task-runs': ['admin'],
   '/api/alerts': ALL,
   '/api/audit': SUPPLIER,
+  '/api/billing/contracts': SUPPLIER,
+  '/api/billing/statements': STATEMENT_READERS,
+  '/api/billing/statements/[id]': STATEMENT_READERS,
+  '/api/billing/statements/[id]/csv': STATEMENT_READERS,
   '/api/board': ALL,
   '/api/component-types': ALL,
   '/api/engine-types': ALL,
@@ -94,6 +100,7 @@ beforeAll(async () => {
   const event = await db()('events').where('series', 'Meridian Endurance GT').where('starts_at', '>', new Date()).orderBy('starts_at').first()
   const user = await db()('users').where('email', USERS.raceA).first()
   const sample = await db()('oil_samples').where('engine_id', engine.id).first()
+  const statement = await db()('statements').where('team_id', engine.team_id).first('id')
   ids = {
     'engines.id': engine.id,
     'oil/engines.id': engine.id,
@@ -107,6 +114,7 @@ beforeAll(async () => {
     'engine-types.id': 1,
     'limits.id': 1,
     'samples.id': sample?.id ?? 999_999,
+    'statements.id': statement.id,
   }
   for (const role of ALL) clients[role] = await signIn(ROLE_USER[role])
   clients.otherManager = await signIn(USERS.managerB)
@@ -140,7 +148,7 @@ describe('roles and organisations on every GET route', () => {
       const expected = NO_DEMO_RECORD.has(r.path) ? [403, 404] : READ_ROLES[r.path]!.includes(role) ? [200] : [403]
       expect(expected, `${role} ${url} answered ${res.status}: ${JSON.stringify(res.body).slice(0, 200)}`).toContain(res.status)
     }
-    if (/\/(engines|parts|sessions|installations|users|samples)\/\d+/.test(url)) {
+    if (/\/(engines|parts|sessions|installations|users|samples|statements)\/\d+/.test(url)) {
       for (const other of ['otherManager', 'otherRace'] as const) {
         const res = await clients[other]!.get(url)
         expect([403, 404], `${other} ${url}`).toContain(res.status)

@@ -12,7 +12,7 @@ import { audit } from '../../utils/audit'
 import { badRequest, conflict, notFound } from '../../utils/errors'
 import { iso, json, num } from '../../utils/db'
 import { contractsOverlapping, termsOf } from './contracts'
-import { ledgerFindings, ledgerSessions, ledgerTeardowns } from './ledger'
+import { ledgerFindings, ledgerSessions, ledgerTeardowns, statementLineRows } from '../../../db/billing-ledger'
 
 export const STATEMENT_OWNER = { supplier: 'st.supplier_id', team: 'st.team_id' }
 /** Days from issue to due date (common practice: 30 days net). */
@@ -102,7 +102,7 @@ export async function generateStatement(trx: Knex.Transaction, actor: Actor, inp
     ;[id] = await trx('statements').insert(row)
   }
   if (all.length) {
-    await trx('statement_lines').insert(all.map((l, i) => ({ statement_id: id, sort: i, line_key: l.key, kind: l.kind, contract_id: l.contractId, description: l.description.slice(0, 500), quantity: l.quantity, unit: l.unit, unit_amount_minor: l.unitAmountMinor, amount_minor: l.amountMinor, tax_rate_bp: l.taxRateBp, adjusts_statement_id: l.adjustsStatementId ?? null, evidence: JSON.stringify(l.evidence) })))
+    await trx('statement_lines').insert(statementLineRows(id!, all))
   }
   await audit(trx, actor, { entity: 'statement', entityId: id!, action: existing ? 'recompute' : 'create', after: { period: period.key, lines: all.length, ...totals, taxByRate: undefined } })
   return (await getStatement(trx, actor, id!, now))!

@@ -1,8 +1,8 @@
 // What a statement prices, read from the life ledger as plain rows for the pure arithmetic
-// (shared/domain/billing/statement.ts).
+// (shared/domain/billing/statement.ts); shared by the billing service and the demo seed.
 import type { Knex } from 'knex'
-import type { LedgerFinding, LedgerSession, LedgerTeardown } from '#shared/domain/billing/statement'
-import { iso, json, num } from '../../utils/db'
+import type { LedgerFinding, LedgerSession, LedgerTeardown, StatementLine } from '../shared/domain/billing/statement'
+import { iso, json, num } from './values'
 
 /**
  * The one place sessions enter billing: every session a statement may price passes through here,
@@ -72,5 +72,24 @@ export async function ledgerFindings(db: Knex | Knex.Transaction, teamId: number
     partSerial: r.part_serial,
     disposition: r.disposition,
     photoIds: photos.filter((p: any) => p.finding_id === r.id).map((p: any) => p.id),
+  }))
+}
+
+/** statement_lines rows of a statement's lines, in their order. */
+export function statementLineRows(statementId: number, lines: StatementLine[]) {
+  return lines.map((l, i) => ({
+    statement_id: statementId,
+    sort: i,
+    line_key: l.key,
+    kind: l.kind,
+    contract_id: l.contractId,
+    description: l.description.slice(0, 500),
+    quantity: l.quantity,
+    unit: l.unit,
+    unit_amount_minor: l.unitAmountMinor,
+    amount_minor: l.amountMinor,
+    tax_rate_bp: l.taxRateBp,
+    adjusts_statement_id: l.adjustsStatementId ?? null,
+    evidence: JSON.stringify(l.evidence),
   }))
 }
