@@ -5,6 +5,7 @@
 import type { Knex } from 'knex'
 import { adjustmentLines, statementLines, statementTotals, type LeaseTerms, type StatementLine } from '../../shared/domain/billing/statement'
 import { ledgerFindings, ledgerSessions, ledgerTeardowns, statementLineRows } from '../billing-ledger'
+import { json } from '../values'
 
 const DAY = 86_400_000
 const day = (t: number) => new Date(t).toISOString().slice(0, 10)
@@ -34,7 +35,7 @@ export async function seedBilling(trx: Knex.Transaction, ctx: { supplierId: numb
   const terms: LeaseTerms[] = (await trx('lease_contracts').where('team_id', marlowe).orderBy('id')).map((r) => ({
     id: r.id, engineId: r.engine_id, engineTypeId: r.engine_type_id, validFrom: day(new Date(r.valid_from).getTime()), validTo: day(new Date(r.valid_to).getTime()), currency: r.currency,
     feeBasis: r.fee_basis, feeMinor: Number(r.fee_minor), allowanceUnit: r.allowance_unit, allowance: r.allowance, overageRateMinor: Number(r.overage_rate_minor),
-    rebuildCharges: JSON.parse(r.rebuild_charges), overRevCharges: JSON.parse(r.over_rev_charges), damageCharges: JSON.parse(r.damage_charges), taxRateBp: r.tax_rate_bp,
+    rebuildCharges: json(r.rebuild_charges, {}), overRevCharges: json(r.over_rev_charges, {}), damageCharges: json(r.damage_charges, {}), taxRateBp: r.tax_rate_bp,
   }))
   const thisMonth = new Date(Date.UTC(ctx.now.getUTCFullYear(), ctx.now.getUTCMonth(), 1))
   const month = (back: number) => {
