@@ -3,7 +3,6 @@
 import type { Knex } from 'knex'
 import { adjustmentLines, statementLines, statementTotals, type StatementLine } from '#shared/domain/billing/statement'
 import { formatMinor } from '#shared/domain/billing/money'
-import { toCsv } from '#shared/csv'
 import type { GenerateStatementInput } from '#shared/schemas/billing'
 import type { Party, StatementDto, StatementLineDto, StatementSummaryDto } from '#shared/types/billing'
 import type { Actor } from '../../utils/guard'
@@ -204,7 +203,8 @@ export async function getStatement(db: Knex | Knex.Transaction, actor: Actor, id
   }
 }
 
-export async function statementCsv(db: Knex, actor: Actor, id: number): Promise<{ name: string; csv: string }> {
+/** The lines as CSV rows and columns (the route writes them with toCsv). */
+export async function statementCsvRows(db: Knex, actor: Actor, id: number) {
   const s = await getStatement(db, actor, id)
   const rows = s.lines.map((l) => ({
     statement: s.number ?? `draft ${s.id}`,
@@ -224,5 +224,5 @@ export async function statementCsv(db: Knex, actor: Actor, id: number): Promise<
     adjusts_statement: l.adjustsStatementId,
   }))
   const columns = ['statement', 'period', 'line', 'kind', 'description', 'quantity', 'unit', 'unit_amount', 'amount', 'currency', 'tax_rate_percent', 'sessions', 'teardown', 'finding', 'adjusts_statement'] as const
-  return { name: `${s.number ?? `statement-${s.id}`}.csv`, csv: toCsv(rows, [...columns]) }
+  return { name: `${s.number ?? `statement-${s.id}`}.csv`, rows, columns: [...columns] }
 }

@@ -1,10 +1,11 @@
+import { toCsv } from '#shared/csv'
 import { STATEMENT_READERS } from '#shared/schemas/billing'
-import { statementCsv } from '../../../../services/billing/statements'
+import { statementCsvRows } from '../../../../services/billing/statements'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireActor(event, STATEMENT_READERS)
   const { id } = readValidParams(event, IdParams)
-  const { name, csv } = await callService(statementCsv, actor, id)
+  const { name, rows, columns } = await callService(statementCsvRows, actor, id)
   setResponseHeaders(event, { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${name}"` })
-  return csv
+  return toCsv(rows, columns)
 })
