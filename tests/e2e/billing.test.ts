@@ -118,7 +118,7 @@ describe('statements', () => {
 
     // A retry: the same statement issued again, and its outbox row delivered again.
     expect((await engineer.post(`/api/billing/statements/${id}/issue`)).status).toBe(200)
-    await db()('invoice_outbox').where('statement_id', id).update({ state: 'pending', next_attempt_at: new Date(0) })
+    await db()('invoice_outbox').where('statement_id', id).update({ state: 'pending', next_attempt_at: new Date('2000-01-01T00:00:00Z') })
     expect((await admin.post('/api/billing/deliver')).status).toBe(200)
     expect(await invoicesOf(id)).toHaveLength(1)
     const state = await fakeState()
@@ -171,7 +171,7 @@ describe('statements', () => {
     expect(res.status).toBe(200)
     expect(res.headers.get('content-type')).toContain('text/csv')
     const text = await res.text()
-    expect(text.split('\n')[0]).toBe('statement,period,line,kind,description,quantity,unit,unit_amount,amount,currency,tax_rate_percent,sessions,teardown,finding,adjusts_statement')
+    expect(text.split(/\r?\n/)[0]).toBe('statement,period,line,kind,description,quantity,unit,unit_amount,amount,currency,tax_rate_percent,sessions,teardown,finding,adjusts_statement')
     expect(text).toContain(',fee,')
   })
 
@@ -216,7 +216,7 @@ describe('the payment service down, then up', () => {
 
     fake = await startPaymentFake({ port, apiKey: 'sk_test_crankledger_local', webhookSecret: WEBHOOK_SECRET })
     // The retry is due after its backoff; the clock is not waited for here.
-    await db()('invoice_outbox').where('statement_id', id).update({ next_attempt_at: new Date(0) })
+    await db()('invoice_outbox').where('statement_id', id).update({ next_attempt_at: new Date('2000-01-01T00:00:00Z') })
     const adminThere = new Client(server.base)
     await adminThere.post('/api/auth/login', { email: USERS.admin, password: 'ledger-demo-2026' })
     expect((await adminThere.post('/api/billing/deliver')).status).toBe(200)
