@@ -13,9 +13,9 @@ const day = (t: number) => new Date(t).toISOString().slice(0, 10)
 export async function seedBilling(trx: Knex.Transaction, ctx: { supplierId: number; teams: Record<string, number>; now: Date }) {
   const now = ctx.now.getTime()
   const t = ctx.teams
-  await trx('organisations').where('id', ctx.supplierId).update({ billing_email: 'accounts@keelbrook.test', billing_address: 'Keelbrook Engine Works\nUnit 4, Ferrow Lane Trading Estate\nAldermoor AM3 9QT', tax_id: 'KB-VAT-4410-27' })
-  await trx('organisations').where('id', t['Marlowe Vane Racing']).update({ billing_email: 'accounts@marlowe.test', billing_address: 'Marlowe Vane Racing Ltd\n12 Copse Row\nHindle Bridge HB7 2LW', tax_id: 'MV-VAT-8812-03' })
-  await trx('organisations').where('id', t['Tidewater Apex Motorsport']).update({ billing_email: 'finance@tidewater.test', billing_address: 'Tidewater Apex Motorsport\nDock 3, Saltings Road\nPortlow PW1 5RE' })
+  await trx('organisations').where('id', ctx.supplierId).update({ billing_email: 'accounts@keelbrook.test', billing_address: 'Unit 4, Ferrow Lane Trading Estate\nAldermoor AM3 9QT', tax_id: 'KB-VAT-4410-27' })
+  await trx('organisations').where('id', t['Marlowe Vane Racing']).update({ billing_email: 'accounts@marlowe.test', billing_address: '12 Copse Row\nHindle Bridge HB7 2LW', tax_id: 'MV-VAT-8812-03' })
+  await trx('organisations').where('id', t['Tidewater Apex Motorsport']).update({ billing_email: 'finance@tidewater.test', billing_address: 'Dock 3, Saltings Road\nPortlow PW1 5RE' })
 
   const types = Object.fromEntries((await trx('engine_types').select('id', 'code')).map((r) => [r.code, r.id]))
   const kt2201 = await trx('engines').where('serial', 'KT4-2201').first('id')

@@ -101,7 +101,7 @@ describe('statements', () => {
   })
 
   it('issues once: one customer per team and one invoice per statement across a retry', async () => {
-    const contact = await engineer.put(`/api/billing/contacts/${redfernId}`, { billingEmail: 'ledger@redfern.test', billingAddress: 'Redfern Lattice Racing\n8 Weir Street\nColdharbour CH2 4NP', taxId: null })
+    const contact = await engineer.put(`/api/billing/contacts/${redfernId}`, { billingEmail: 'ledger@redfern.test', billingAddress: '8 Weir Street\nColdharbour CH2 4NP', taxId: null })
     expect(contact.status).toBe(200)
     const id = (await db()('statements').where({ team_id: redfernId, period_key: month(1) }).first('id')).id
     const issued = await engineer.post(`/api/billing/statements/${id}/issue`)
@@ -163,6 +163,31 @@ describe('statements', () => {
     expect((await engineer.get(`/api/billing/statements/${openId}`)).body.paymentStatus).toBe('open')
     expect((await db()('audit_log').count({ n: '*' }).first())!.n).toBe(audits)
     expect(await db()('payment_webhook_events').where('event_id', 'evt_forged_1').first()).toBeUndefined()
+  })
+
+  it('refuses a month that overlaps an event statement of the same team', async () => {
+    // the touring round Redfern ran in the last closed month, as an event period
+    const from = new Date(`${month(1)}-01T00:00:00Z`)
+    const to = new Date(Date.UTC(from.getUTCFullYear(), from.getUTCMonth() + 1, 1))
+    const ev = await db()('events').where('series', 'Coastline Touring Cup').where('starts_at', '>=', from).where('ends_at', '<=', to).first('id', 'name')
+    const res = await engineer.post('/api/billing/statements', { teamId: redfernId, eventId: ev.id })
+    expect(res.status).toBe(409)
+    expect(res.body.message).toContain('eventId')
+    expect(await db()('statements').where({ team_id: redfernId, period_key: `event:${ev.id}` }).first()).toBeUndefined()
+  })
+
+  it('the demo season shows every state: paid, open with an adjustment for a late session, draft', async () => {
+    const rows = await engineer.get('/api/billing/statements?teamId=' + (await db()('organisations').where('name', 'Marlowe Vane Racing').first('id')).id)
+    // (the browser test may have issued and paid the demo's draft by now)
+    const open = rows.body.find((s: any) => s.paymentStatus === 'open')
+    expect(open).toBeTruthy()
+    const detail = (await engineer.get(`/api/billing/statements/${open.id}`)).body
+    const adjustment = detail.lines.find((l: any) => l.kind === 'adjustment')
+    const paid = rows.body.find((s: any) => s.id === adjustment.adjustsStatementId)
+    expect(paid.paymentStatus).toBe('paid')
+    expect(adjustment.amountMinor).toBeGreaterThan(0)
+    expect(adjustment.description).toContain(`Debit on ${paid.number}`)
+    expect(adjustment.evidence.sessionIds).toHaveLength(1)
   })
 
   it('exports the lines as CSV', async () => {

@@ -84,6 +84,9 @@ export async function generateStatement(trx: Knex.Transaction, actor: Actor, inp
   const team = await scopeOrganisations(trx('organisations'), actor).where({ id: input.teamId, kind: 'team' }).first('id', 'supplier_id')
   if (!team) badRequest(`Invalid input: teamId: team ${input.teamId} not found`)
   const period = await periodOf(trx, actor, input, now)
+  // A session belongs to one statement: a month and an event that overlap it cannot both be billed.
+  const overlapping = await trx('statements').where('team_id', team.id).whereNot('period_key', period.key).where('period_from', '<', new Date(period.to)).where('period_to', '>', new Date(period.from)).first('id', 'number', 'period_label')
+  if (overlapping) conflict(`${input.month ? 'month' : 'eventId'}: ${period.label} overlaps statement ${overlapping.number ?? overlapping.id} (${overlapping.period_label}) of this team`)
   const existing = await trx('statements').where({ team_id: team.id, period_key: period.key }).forUpdate().first('id', 'state', 'number')
   if (existing?.state === 'issued') conflict(`${input.month ? 'month' : 'eventId'}: statement ${existing.number} for ${period.label} is issued and never changes; later changes go on the next statement`)
   const { contracts, lines } = await periodLines(trx, actor, team.id, period, existing?.id ?? null)
@@ -138,6 +141,13 @@ export async function issueStatement(trx: Knex.Transaction, actor: Actor, id: nu
   if (row.state !== 'reviewed') conflict(`state: statement ${id} is a draft: review it before issuing`)
   const charged = await trx('statement_lines').where('statement_id', id).whereNot('amount_minor', 0).count({ n: '*' }).first()
   if (Number(charged?.n ?? 0) === 0) badRequest(`Invalid input: lines: statement ${id} has no lines to invoice`)
+  // Two drafts computed before either was issued may carry the same adjustment: bill it once.
+  const billedElsewhere = await trx('statement_lines as l')
+    .join('statements as s', 's.id', 'l.statement_id')
+    .where('s.state', 'issued')
+    .whereIn('l.line_key', trx('statement_lines').where({ statement_id: id, kind: 'adjustment' }).select('line_key'))
+    .first('s.number')
+  if (billedElsewhere) conflict(`lines: an adjustment on this statement was billed on ${billedElsewhere.number} meanwhile; compute the draft again`)
   const team = await partyOf(trx, row.team_id)
   if (!team.email) badRequest(`Invalid input: billingEmail: ${team.name} has no billing contact; add one before issuing`)
   const supplier = await partyOf(trx, row.supplier_id)
