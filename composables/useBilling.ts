@@ -4,16 +4,20 @@ interface OrganisationRow { id: number; name: string; kind: 'supplier' | 'team';
 
 /** The supplier's billing page: contracts, teams, every statement, and the writes on them. */
 export async function useBillingOverview() {
-  const [contracts, statements, organisations] = await Promise.all([
+  const [contracts, statements, organisations, engineTypes] = await Promise.all([
     useFetch<ContractDto[]>('/api/billing/contracts', { key: 'billing-contracts', default: () => [] }),
     useFetch<StatementSummaryDto[]>('/api/billing/statements', { key: 'billing-statements', default: () => [] }),
     useFetch<OrganisationRow[]>('/api/organisations', { key: 'billing-organisations', default: () => [] }),
+    useFetch<{ id: number; code: string }[]>('/api/engine-types', { key: 'billing-engine-types', default: () => [] }),
   ])
   const teams = computed(() => organisations.data.value.filter((o) => o.kind === 'team'))
 
   async function createContract(body: Record<string, unknown>) {
     await $fetch('/api/billing/contracts', { method: 'POST', body })
     await contracts.refresh()
+  }
+  async function saveContact(organisationId: number, body: Record<string, unknown>) {
+    await $fetch(`/api/billing/contacts/${organisationId}`, { method: 'PUT', body })
   }
   async function generate(body: { teamId: number; month?: string; eventId?: number }) {
     const s = await $fetch<StatementDto>('/api/billing/statements', { method: 'POST', body })
@@ -29,7 +33,7 @@ export async function useBillingOverview() {
     await statements.refresh()
   }
 
-  return { contracts: contracts.data, statements: statements.data, teams, error: statements.error, refresh: statements.refresh, createContract, generate, review, issue }
+  return { contracts: contracts.data, statements: statements.data, teams, engineTypes: engineTypes.data, error: statements.error, refresh: statements.refresh, createContract, saveContact, generate, review, issue }
 }
 
 /** The statements the actor may see (a team manager: their own team's). */
