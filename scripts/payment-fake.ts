@@ -1,5 +1,5 @@
 // A small stateful stand-in for the payment service, with exactly the endpoints Crankledger uses
-// (customers, invoices, invoice items, finalize) plus a few controls for tests and the demo
+// (customers: create and read; invoices, invoice items, finalize) plus a few controls for tests and the demo
 // (/_fake/...: pay, void or mark an invoice overdue, which posts the signed webhook; read the state).
 // Idempotency keys behave as the service documents them: the same key with the same request answers
 // the first answer again; with a different request it is refused. Loopback only; memory only.
@@ -63,7 +63,7 @@ export function startPaymentFake(opts: FakeOptions): Promise<PaymentFake> {
     res.writeHead(status, { 'content-type': 'application/json' })
     res.end(JSON.stringify(body))
   }
-  const fail = (status: number, message: string, type = 'invalid_request_error') => ({ status, body: { error: { type, message } } })
+  const fail = (status: number, message: string, extra: Record<string, string> = {}) => ({ status, body: { error: { type: 'invalid_request_error', message, ...extra } } })
 
   async function postEvent(type: string, invoice: Invoice) {
     const event = { id: nextId('evt'), object: 'event', type, created: Math.floor(Date.now() / 1000), livemode: false, data: { object: invoice } }
@@ -85,7 +85,7 @@ export function startPaymentFake(opts: FakeOptions): Promise<PaymentFake> {
       return { status: 200, body: c }
     }
     if (method === 'POST' && path === '/v1/invoices') {
-      if (!customers.has(form.customer)) return fail(400, `No such customer: '${form.customer}'`)
+      if (!customers.has(form.customer)) return fail(400, `No such customer: '${form.customer}'`, { code: 'resource_missing', param: 'customer' })
       const inv: Invoice = { id: nextId('in'), object: 'invoice', customer: form.customer, currency: form.currency, status: 'draft', number: null, due_date: form.due_date ? Number(form.due_date) : null, metadata: form.metadata ?? {}, lines: { object: 'list', data: [] }, total: 0, created: now }
       invoices.set(inv.id, inv)
       return { status: 200, body: inv }
@@ -108,6 +108,11 @@ export function startPaymentFake(opts: FakeOptions): Promise<PaymentFake> {
       inv.status = 'open'
       inv.number = `FAKE-${String(++invoiceNumber).padStart(4, '0')}`
       return { status: 200, body: inv }
+    }
+    const customer = /^\/v1\/customers\/([\w]+)$/.exec(path)
+    if (method === 'GET' && customer) {
+      const c = customers.get(customer[1]!)
+      return c ? { status: 200, body: c } : fail(404, `No such customer: '${customer[1]}'`, { code: 'resource_missing', param: 'id' })
     }
     const get = /^\/v1\/invoices\/([\w]+)$/.exec(path)
     if (method === 'GET' && get) {

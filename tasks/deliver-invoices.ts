@@ -82,6 +82,7 @@ async function deliverOne(deps: InvoiceDeliverDeps, statementId: number) {
     await db('billing_customers').insert({ team_id: st.team_id, customer_id: created.id }).onConflict('team_id').ignore()
     customer = await db('billing_customers').where('team_id', st.team_id).first('customer_id')
   }
+  customer = await existingCustomer(deps, st, customer.customer_id)
   const lines = await db('statement_lines').where('statement_id', statementId).whereNot('amount_minor', 0).orderBy('sort').select('id', 'description', 'amount_minor')
   const invoice = await deps.payments.createInvoice({
     customerId: customer.customer_id,
@@ -96,4 +97,16 @@ async function deliverOne(deps: InvoiceDeliverDeps, statementId: number) {
   // A webhook may already have said paid: only a queued statement becomes open here.
   await db('statements').where('id', statementId).update({ invoice_id: invoice.id, invoice_number: invoice.number })
   await db('statements').where({ id: statementId, payment_status: 'queued' }).update({ payment_status: 'open' })
+}
+
+/**
+ * The service may no longer know a customer we stored (a service account reset, or the local
+ * fake restarted while the database kept its rows): a new one is created once, with a key
+ * derived from the one it replaces, so concurrent deliverers still agree on one.
+ */
+async function existingCustomer(deps: InvoiceDeliverDeps, st: any, customerId: string): Promise<{ customer_id: string }> {
+  if (await deps.payments.customerExists(customerId)) return { customer_id: customerId }
+  const created = await deps.payments.createCustomer({ teamId: st.team_id, name: st.team_name, email: st.billing_email, address: st.billing_address }, `crankledger-team-${st.team_id}-customer-after-${customerId}`)
+  await deps.db('billing_customers').where({ team_id: st.team_id, customer_id: customerId }).update({ customer_id: created.id })
+  return (await deps.db('billing_customers').where('team_id', st.team_id).first('customer_id'))!
 }

@@ -28,6 +28,15 @@ export function stripePayments(): PaymentPort {
       const c = await paymentClient().customers.create({ name: input.name, email: input.email, address: input.address ? { line1: input.address.split('\n')[0] } : undefined, metadata: { team_id: String(input.teamId) } }, { idempotencyKey })
       return { id: c.id }
     },
+    async customerExists(customerId) {
+      try {
+        const c = await paymentClient().customers.retrieve(customerId)
+        return !(c as { deleted?: boolean }).deleted
+      } catch (e: any) {
+        if (e?.statusCode === 404 || e?.code === 'resource_missing') return false
+        throw e
+      }
+    },
     async createInvoice(input) {
       const stripe = paymentClient()
       const k = input.keyPrefix

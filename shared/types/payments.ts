@@ -4,6 +4,8 @@ export interface InvoiceLine { lineId: number; description: string; amountMinor:
 
 export interface PaymentPort {
   createCustomer(input: { teamId: number; name: string; email: string; address: string | null }, idempotencyKey: string): Promise<{ id: string }>
+  /** false when the service answers that it has no such customer */
+  customerExists(customerId: string): Promise<boolean>
   createInvoice(input: {
     customerId: string
     currency: string

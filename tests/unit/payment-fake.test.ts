@@ -8,9 +8,10 @@ import { startPaymentFake, type PaymentFake } from '../../scripts/payment-fake'
 
 let fake: PaymentFake
 let stripe: Stripe
+let port: number
 
 beforeAll(async () => {
-  const port = await new Promise<number>((resolve) => {
+  port = await new Promise<number>((resolve) => {
     const s = createServer().listen(0, '127.0.0.1', () => {
       const p = (s.address() as { port: number }).port
       s.close(() => resolve(p))
@@ -43,8 +44,12 @@ describe('payment fake', () => {
     await expect(stripe.invoiceItems.create({ customer: c.id, invoice: inv.id, currency: 'eur', amount: 1 })).rejects.toMatchObject({ statusCode: 400 })
   })
 
+  it('answers 404 for a customer it does not know', async () => {
+    await expect(stripe.customers.retrieve('cus_unknown')).rejects.toMatchObject({ statusCode: 404, code: 'resource_missing' })
+  })
+
   it('refuses a wrong key', async () => {
-    const wrong = new Stripe('sk_test_other', { host: '127.0.0.1', port: fake.server.address() && (fake.server.address() as { port: number }).port, protocol: 'http', maxNetworkRetries: 0 })
+    const wrong = new Stripe('sk_test_other', { host: '127.0.0.1', port, protocol: 'http', maxNetworkRetries: 0 })
     await expect(wrong.customers.create({ name: 'x' })).rejects.toMatchObject({ statusCode: 401 })
   })
 })
