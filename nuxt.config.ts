@@ -50,6 +50,9 @@ export default defineNuxtConfig({
     trustedProxy: { header: 'x-forwarded-for', hops: 0 },
     // bytes per part of a resumable upload: a dropped connection costs at most one part
     public: { uploadPartBytes: 8 * 1024 * 1024 },
+    // The payment service (invoices) through its SDK; locally and in tests the fake that
+    // scripts/start.sh and scripts/test.sh start on loopback (scripts/payment-fake.ts).
+    payment: { apiKey: 'sk_test_crankledger_local', host: '127.0.0.1', port: 12111, protocol: 'http', webhookSecret: 'whsec_crankledger_local_secret' },
   },
   // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
   auth: { loadStrategy: 'none' },

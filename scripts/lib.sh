@@ -44,3 +44,11 @@ start_maildev() { # smtp-port web-port dir
   MAILDEV_PID=$!
   wait_for_port 127.0.0.1 "$1" 30
 }
+
+# The local stand-in for the payment service (invoices): port, webhook URL, log dir.
+start_payment_fake() {
+  mkdir -p "$3"
+  CL_PAYMENT_PORT="$1" CL_PAYMENT_WEBHOOK_URL="$2" node_modules/.bin/tsx scripts/payment-fake.ts > "$3/payment-fake.log" 2>&1 &
+  PAYMENT_FAKE_PID=$!
+  wait_for_port 127.0.0.1 "$1" 30
+}

@@ -8,6 +8,8 @@ export CL_TEST_PORT="${CL_TEST_PORT:-3390}"
 export NUXT_SMTP_PORT="${NUXT_SMTP_PORT:-1027}"
 export CL_MAILDEV_WEB="${CL_MAILDEV_WEB:-1082}"
 export NUXT_PUBLIC_URL="http://127.0.0.1:$CL_TEST_PORT"
+export CL_PAYMENT_PORT="${CL_PAYMENT_PORT:-12112}"
+export NUXT_PAYMENT_PORT="$CL_PAYMENT_PORT"
 export NUXT_SESSION_PASSWORD="test-session-password-0123456789abcdef"
 export NUXT_STORAGE_DIR="$root/.data-test/files"
 # A small upload cap so the size-limit test need not send 200 MiB.
@@ -21,10 +23,11 @@ bash db/mariadb.sh ensure-installed
 ensure_chromium
 ensure_node_modules
 
-MAILDEV_PID=""
+MAILDEV_PID=""; PAYMENT_FAKE_PID=""
 cleanup() {
   trap - INT TERM EXIT
   [[ -n "$MAILDEV_PID" ]] && kill "$MAILDEV_PID" 2>/dev/null || true
+  [[ -n "$PAYMENT_FAKE_PID" ]] && kill "$PAYMENT_FAKE_PID" 2>/dev/null || true
   bash db/mariadb.sh stop test || true
 }
 trap cleanup INT TERM EXIT
@@ -36,6 +39,7 @@ rm -rf "$NUXT_STORAGE_DIR"
 
 rm -rf "$root/.data-test/maildev"
 start_maildev "$NUXT_SMTP_PORT" "$CL_MAILDEV_WEB" "$root/.data-test/maildev"
+start_payment_fake "$CL_PAYMENT_PORT" "$NUXT_PUBLIC_URL/api/billing/webhook" "$root/.data-test/payment-fake"
 
 say "type-checking (vue-tsc: pages, components, server, tests)"
 npx nuxt typecheck

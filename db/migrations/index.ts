@@ -20,6 +20,9 @@ import * as sessionVoid from './20261204_02_a_session_void'
 import * as sessionLiveFile from './20261204_02_b_session_live_file'
 import * as partConcessions from './20261204_03_part_concessions'
 import * as traceOverview from './20261204_04_trace-overview'
+import * as billingContacts from './20261204_06_a_billing_contacts'
+import * as leaseContracts from './20261204_06_b_lease_contracts'
+import * as statements from './20261204_06_c_statements'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -44,6 +47,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_02_b_session_live_file': sessionLiveFile,
   '20261204_03_part_concessions': partConcessions,
   '20261204_04_trace-overview': traceOverview,
+  '20261204_06_a_billing_contacts': billingContacts,
+  '20261204_06_b_lease_contracts': leaseContracts,
+  '20261204_06_c_statements': statements,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

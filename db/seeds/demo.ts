@@ -3,6 +3,7 @@
 import type { Knex } from 'knex'
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
+import { seedBilling } from './billing'
 import { seedFleet } from './fleet'
 import { seedOil } from './oil'
 import { seedTeardowns } from './teardowns'
@@ -40,5 +41,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
     await seedFleet(trx, { supplierId: supplierId!, teams, now })
     await seedOil(trx, { now })
     await seedTeardowns(trx)
+    await seedBilling(trx, { supplierId: supplierId!, teams, now })
   })
 }

@@ -11,6 +11,7 @@ const ALL: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_enginee
 const SUPPLIER: Role[] = ['admin', 'supplier_engineer']
 const WRITERS: Role[] = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer']
 const TEARDOWN: Role[] = ['admin', 'supplier_engineer', 'mechanic']
+const STATEMENT_READERS: Role[] = ['admin', 'supplier_engineer', 'team_manager']
 
 interface Route { method: string; path: string; file: string }
 
@@ -33,7 +34,8 @@ function apiRoutes(): Route[] {
   return out
 }
 
-const PUBLIC = new Set(['POST /api/auth/login', 'POST /api/auth/logout', 'GET /api/health'])
+// The payment webhook is admitted by the service's signature, not a session (tests/e2e/billing.test.ts).
+const PUBLIC = new Set(['POST /api/auth/login', 'POST /api/auth/logout', 'GET /api/health', 'POST /api/billing/webhook'])
 
 /** Which roles may read each GET route (expect 200 on their own organisation's records; everyone else 403). */
 const READ_ROLES: Record<string, Role[]> = {
@@ -42,6 +44,10 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/alerts': ALL,
   '/api/alerts/engines': ALL,
   '/api/audit': SUPPLIER,
+  '/api/billing/contracts': SUPPLIER,
+  '/api/billing/statements': STATEMENT_READERS,
+  '/api/billing/statements/[id]': STATEMENT_READERS,
+  '/api/billing/statements/[id]/csv': STATEMENT_READERS,
   '/api/board': ALL,
   '/api/component-types': ALL,
   '/api/engine-types': ALL,
@@ -101,6 +107,7 @@ beforeAll(async () => {
   const sample = await db()('oil_samples').where('engine_id', engine.id).first()
   // a signed-off demo teardown of Marlowe's KT4-2201 (team A)
   const teardown = await db()('teardowns as t').join('engines as e', 'e.id', 't.engine_id').where('e.serial', 'KT4-2201').orderBy('t.id').first('t.id')
+  const statement = await db()('statements').where('team_id', engine.team_id).first('id')
   ids = {
     'engines.id': engine.id,
     'oil/engines.id': engine.id,
@@ -116,6 +123,7 @@ beforeAll(async () => {
     'limits.id': 1,
     'samples.id': sample?.id ?? 999_999,
     'teardowns.id': teardown.id,
+    'statements.id': statement.id,
   }
   for (const role of ALL) clients[role] = await signIn(ROLE_USER[role])
   clients.otherManager = await signIn(USERS.managerB)
@@ -149,7 +157,7 @@ describe('roles and organisations on every GET route', () => {
       const expected = NO_DEMO_RECORD.has(r.path) ? [403, 404] : READ_ROLES[r.path]!.includes(role) ? [200] : [403]
       expect(expected, `${role} ${url} answered ${res.status}: ${JSON.stringify(res.body).slice(0, 200)}`).toContain(res.status)
     }
-    if (/\/(engines|parts|sessions|installations|users|samples|teardowns)\/\d+/.test(url)) {
+    if (/\/(engines|parts|sessions|installations|users|samples|teardowns|statements)\/\d+/.test(url)) {
       for (const other of ['otherManager', 'otherRace'] as const) {
         const res = await clients[other]!.get(url)
         expect([403, 404], `${other} ${url}`).toContain(res.status)

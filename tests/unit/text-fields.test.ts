@@ -52,9 +52,10 @@ const messages = (schema: z.ZodType, value: string) => {
   return r.success ? [] : r.error.issues.map((i) => i.message)
 }
 
-/** The fields that keep line breaks: notes, comments and the text of an uploaded lab file. */
+/** The fields that keep line breaks: notes, comments, postal addresses and the text of an uploaded lab file. */
 const MULTI_LINE = [
   'shared/schemas/alerts.ts AlertAckSchema.comment',
+  'shared/schemas/billing.ts BillingContactSchema.billingAddress',
   'shared/schemas/oil.ts OilImportSchema.csv',
   'shared/schemas/teardown.ts TeardownStartSchema.note',
 ]
@@ -88,7 +89,7 @@ describe('control characters in text fields', () => {
     }
     // TeardownStartSchema's note is the one `text()` the finding and sign-off notes share
     expect(multi.sort()).toEqual(expect.arrayContaining(MULTI_LINE))
-    expect(multi.every((p) => /\.(note|comment|csv)$/.test(p)), multi.join(', ')).toBe(true)
+    expect(multi.every((p) => /\.(note|comment|csv|billingAddress)$/.test(p)), multi.join(', ')).toBe(true)
   })
 
   it('names the field in the API\'s answer', async () => {
