@@ -13,7 +13,7 @@ export interface BatchItem {
   sessionId: number | null
 }
 
-export interface BatchMeta { engineId: number; eventId: number | null; kind: string; startedAt: string; laps: string }
+export interface BatchMeta { engineId: number; eventId: number | null; kind: string; startedAt: string; laps: string; confirmDate: boolean }
 
 type Upload = (query: URLSearchParams, file: File, on: LoggerUploadHandlers) => Promise<void>
 
@@ -55,6 +55,7 @@ export function useLoggerBatch(profiles: Ref<LoggerProfile[]>, upload: Upload) {
       // the logger's own start where its metadata gives one
       startedAt: item.loggerStart ?? meta.startedAt,
       laps: meta.laps,
+      confirmDate: String(meta.confirmDate),
       fileName: item.file.name,
       mapping: JSON.stringify(mapping),
     })
