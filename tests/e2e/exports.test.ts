@@ -25,7 +25,8 @@ const cell = (s: string) => (/[",]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s)
 
 beforeAll(async () => {
   const engine = await db()('engines').where('serial', ENGINE).first()
-  const inst = await db()('installations').where({ engine_id: engine.id, position: 'rod-1' }).whereNull('to_at').first()
+  // The rod fitted at the engine's build: it ran every demo round, whatever later tests swap on this engine.
+  const inst = await db()('installations').where({ engine_id: engine.id, position: 'rod-1' }).orderBy('from_at').orderBy('id').first()
   const comp = await db()('components').where('id', inst.component_id).first()
   const ct = await db()('component_types').where('id', comp.component_type_id).first()
   const pos = await db()('engine_type_positions').where({ engine_type_id: engine.engine_type_id, position: 'rod-1' }).first()
