@@ -16,6 +16,10 @@ export async function useBillingOverview() {
     await $fetch('/api/billing/contracts', { method: 'POST', body })
     await contracts.refresh()
   }
+  async function endContract(id: number, validTo: string) {
+    await $fetch(`/api/billing/contracts/${id}/end`, { method: 'POST', body: { validTo } })
+    await contracts.refresh()
+  }
   async function saveContact(organisationId: number, body: Record<string, unknown>) {
     await $fetch(`/api/billing/contacts/${organisationId}`, { method: 'PUT', body })
   }
@@ -33,7 +37,7 @@ export async function useBillingOverview() {
     await statements.refresh()
   }
 
-  return { contracts: contracts.data, statements: statements.data, teams, engineTypes: engineTypes.data, error: statements.error, refresh: statements.refresh, createContract, saveContact, generate, review, issue }
+  return { contracts: contracts.data, statements: statements.data, teams, engineTypes: engineTypes.data, error: statements.error, refresh: statements.refresh, createContract, endContract, saveContact, generate, review, issue }
 }
 
 /** The statements the actor may see (a team manager: their own team's). */

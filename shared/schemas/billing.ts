@@ -45,6 +45,9 @@ export const ContractSchema = z
   .refine((c) => c.validTo >= c.validFrom, { message: 'must not be before validFrom', path: ['validTo'] })
 export type ContractInput = z.infer<typeof ContractSchema>
 
+/** A contract ends early (a price change mid-season: end it, then add the new one from the next day). */
+export const EndContractSchema = z.object({ validTo: date() })
+
 export const GenerateStatementSchema = z
   .object({
     teamId: id(),

@@ -68,6 +68,33 @@ describe('lease contracts refuse bad input with the field named', () => {
     expect(clash.body.message).toContain(`contract ${ok.body.id}`)
   })
 
+  it('ends a contract early, from today on only, so what was billed keeps its terms; then the new term fits', async () => {
+    const id = (await db()('lease_contracts').where({ team_id: redfernId, valid_from: '2030-01-01' }).first('id')).id
+    const end = (validTo: string) => engineer.post(`/api/billing/contracts/${id}/end`, { validTo })
+    const past = await end('2020-01-31')
+    expect(past.status).toBe(400)
+    expect(past.body.message).toMatch(/validTo: 2020-01-31 is in the past/)
+    expect((await end('2029-12-31')).body.message).toContain('validTo: must not be before validFrom (2030-01-01)')
+    const same = await end('2030-12-31')
+    expect(same.status).toBe(409)
+    expect(same.body.message).toContain('already ends on 2030-12-31')
+    expect((await end('30 June')).status).toBe(400)
+    expect((await engineer.post('/api/billing/contracts/999999/end', { validTo: '2030-06-30' })).status).toBe(404)
+    expect((await (await signIn(USERS.managerC)).post(`/api/billing/contracts/${id}/end`, { validTo: '2030-06-30' })).status).toBe(403)
+    expect(await db()('audit_log').where({ entity: 'lease_contract', entity_id: String(id), action: 'end' }).first()).toBeUndefined()
+
+    const ended = await end('2030-05-31')
+    expect(ended.status, JSON.stringify(ended.body)).toBe(200)
+    expect(ended.body).toMatchObject({ id, validFrom: '2030-01-01', validTo: '2030-05-31' })
+    const trail = await db()('audit_log').where({ entity: 'lease_contract', entity_id: String(id), action: 'end' }).first()
+    const parsed = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v)
+    expect(parsed(trail.before)).toEqual({ validTo: '2030-12-31' })
+    expect(parsed(trail.after)).toEqual({ validTo: '2030-05-31' })
+    // the term that overlapped before now fits
+    const next = await engineer.post('/api/billing/contracts', { ...contract, validFrom: '2030-06-01', validTo: '2031-05-31', feeMinor: 110_000 })
+    expect(next.status, JSON.stringify(next.body)).toBe(201)
+  })
+
   it('team roles cannot write contracts', async () => {
     const manager = await signIn(USERS.managerC)
     expect((await manager.post('/api/billing/contracts', contract)).status).toBe(403)

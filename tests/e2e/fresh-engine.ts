@@ -9,6 +9,7 @@ export interface FreshEngine {
   id: number
   serial: string
   engineTypeId: number
+  teamId: number
   partIds: number[]
   /** a crank drive part fitted since the build */
   crankshaftId: number
@@ -23,7 +24,7 @@ export async function freshEngine(prefix: string, opts: { typeCode?: string; tea
   const partIds: number[] = []
   let crankshaftId = 0
   let engineId = 0
-    await k.transaction(async (trx) => {
+  await k.transaction(async (trx) => {
     const [id] = await trx('engines').insert({ serial, engine_type_id: type.id, supplier_id: type.supplier_id, team_id: team.id, status: 'active', location: 'car', chassis: null, built_at: builtAt })
     const positions = await trx('engine_type_positions').where('engine_type_id', type.id).orderBy('sort')
     for (const [i, p] of positions.entries()) {
@@ -36,7 +37,7 @@ export async function freshEngine(prefix: string, opts: { typeCode?: string; tea
     await trx('life_revision').where('id', 1).increment('revision', 1)
     engineId = id!
   })
-  return { id: engineId, serial, engineTypeId: type.id, partIds, crankshaftId: crankshaftId || partIds[0]! }
+  return { id: engineId, serial, engineTypeId: type.id, teamId: team.id, partIds, crankshaftId: crankshaftId || partIds[0]! }
 }
 
 /**

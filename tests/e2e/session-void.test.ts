@@ -4,6 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { BASE, db, signIn, USERS, type Client } from './helpers'
 import { freshEngine, removeFreshEngines, type FreshEngine } from './fresh-engine'
+import { ledgerSessions } from '../../db/billing-ledger'
 
 // KV8-45 (demo): rev limit 9,200 rpm in 500 rpm bands: (9,200 + 1,000) / 500 rounded up = 21 bands.
 const BANDS = 21
@@ -38,6 +39,7 @@ async function figures() {
     rodKm: rod.part.km as number,
     rodOverRevB: (rod.part.overRevCounts.B ?? 0) as number,
     rodSessions: rod.sessions.map((s: any) => s.id) as number[],
+    billed: (await ledgerSessions(db(), engine.teamId, new Date(Date.now() - 24 * HOUR).toISOString(), new Date().toISOString())).filter((s) => s.engineId === engine.id).map((s) => s.id),
   }
 }
 
@@ -82,6 +84,8 @@ describe('voiding a session', () => {
     expect(counted.rodKm).toBeCloseTo(230, 9)
     expect(counted.rodOverRevB).toBe(1)
     expect(counted.rodSessions).toContain(wrong)
+    // Billing reads the same sessions: a voided one bills nothing (one issued already turns into a credit line).
+    expect(counted.billed).toEqual([first, wrong])
     // The forecast reads the recent duty: a harder half hour changes what the coming events would use.
     expect(counted.forecast.length).toBeGreaterThan(0)
     expect(counted.forecast).not.toEqual(before.forecast)

@@ -107,6 +107,24 @@ export async function createContract(trx: Knex.Transaction, actor: Actor, input:
   return contractDto(created)
 }
 
+/**
+ * Ends a contract on `validTo`, never before today (UTC): the periods already billed keep the terms
+ * they were billed on, so a later adjustment never reprices them. Only shortens; a longer term is a
+ * new contract.
+ */
+export async function endContract(trx: Knex.Transaction, actor: Actor, id: number, input: { validTo: string }, now = new Date()): Promise<ContractDto> {
+  const row = await contractQuery(trx, actor).where('c.id', id).forUpdate().first()
+  if (!row) notFound('Contract not found')
+  const before = contractDto(row)
+  const today = now.toISOString().slice(0, 10)
+  if (input.validTo < today) badRequest(`Invalid input: validTo: ${input.validTo} is in the past; a contract ends today (${today}) at the earliest, so what was billed keeps its terms`)
+  if (input.validTo < before.validFrom) badRequest(`Invalid input: validTo: must not be before validFrom (${before.validFrom})`)
+  if (input.validTo >= before.validTo) conflict(`validTo: the contract already ends on ${before.validTo}; only an earlier end can be set (add a new contract for a longer term)`)
+  await trx('lease_contracts').where('id', id).update({ valid_to: input.validTo })
+  await audit(trx, actor, { entity: 'lease_contract', entityId: id, action: 'end', before: { validTo: before.validTo }, after: { validTo: input.validTo } })
+  return contractDto(await contractQuery(trx, actor).where('c.id', id).first())
+}
+
 /** The supplier marks a teardown finding as the team's doing; the contract's damage rule prices it. */
 export async function chargeFinding(trx: Knex.Transaction, actor: Actor, findingId: number, input: z.infer<typeof FindingChargeSchema>) {
   const finding = await scopeQuery(
