@@ -1,7 +1,7 @@
 // Printing and charts in Chromium: the teardown report's Print button opens the print dialog
 // under the content security policy, and Chromium's own print to PDF carries the report; the part
 // page's print and export actions; the session page's five charts with the over-revs marked.
-// Demo records only: KT4-2201's last teardown and a conrod of it, KV8-1102's missed downshift.
+// Demo records only: KT4-2201's signed-off teardown and a conrod of it, KV8-1102's missed downshift.
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
@@ -37,7 +37,9 @@ function cspErrors(page: Page): string[] {
 
 describe('teardown report', () => {
   it('Print opens the print dialog with no policy violation, and the PDF carries the engine and its readings', async () => {
-    const td = await db()('teardowns as t').join('engines as e', 'e.id', 't.engine_id').where('e.serial', 'KT4-2201').orderBy('t.opened_at', 'desc').first('t.id')
+    // the demo's signed-off teardown with readings (other files open teardowns of their own on this engine)
+    const td = await db()('teardowns as t').join('engines as e', 'e.id', 't.engine_id').where('e.serial', 'KT4-2201').where('t.state', 'signed off')
+      .whereExists(db()('teardown_measurements as m').whereRaw('m.teardown_id = t.id')).orderBy('t.id').first('t.id')
     const reading = await db()('teardown_measurements').where('teardown_id', td.id).orderBy('id').first('value', 'unit')
     const page = await signedInPage(browser, USERS.mechanicA)
     await withPrintStub(page)

@@ -12,9 +12,10 @@ export async function makeAlertEngine(serial: string, teamName = 'Marlowe Vane R
   const [engineId] = await db()('engines').insert({
     serial, engine_type_id: template.engine_type_id, supplier_id: template.supplier_id, team_id: team.id, status: 'active', location: 'shelf', chassis: null, built_at: builtAt,
   })
-  const build = await db()('installations as i').join('components as c', 'c.id', 'i.component_id').where('i.engine_id', template.id).whereNull('i.to_at').orderBy('i.id').select('i.position', 'c.component_type_id', 'c.supplier_id')
+  // Every position of the engine type, whatever other files have swapped or removed on the template engine.
+  const build = await db()('engine_type_positions').where('engine_type_id', template.engine_type_id).orderBy('sort').select('position', 'component_type_id')
   for (const p of build) {
-    const [componentId] = await db()('components').insert({ supplier_id: p.supplier_id, component_type_id: p.component_type_id, serial: `${serial}-${p.position}`.toUpperCase(), batch: 'T-ALERT', status: 'installed', born_at: builtAt })
+    const [componentId] = await db()('components').insert({ supplier_id: template.supplier_id, component_type_id: p.component_type_id, serial: `${serial}-${p.position}`.toUpperCase(), batch: 'T-ALERT', status: 'installed', born_at: builtAt })
     await db()('installations').insert({ component_id: componentId, engine_id: engineId, position: p.position, from_at: builtAt })
   }
   await db()('life_revision').where('id', 1).increment('revision', 1)

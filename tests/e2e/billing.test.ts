@@ -88,8 +88,8 @@ describe('lease contracts refuse bad input with the field named', () => {
     expect(ended.body).toMatchObject({ id, validFrom: '2030-01-01', validTo: '2030-05-31' })
     const trail = await db()('audit_log').where({ entity: 'lease_contract', entity_id: String(id), action: 'end' }).first()
     const parsed = (v: unknown) => (typeof v === 'string' ? JSON.parse(v) : v)
-    expect(parsed(trail.before)).toEqual({ validTo: '2030-12-31' })
-    expect(parsed(trail.after)).toEqual({ validTo: '2030-05-31' })
+    expect(parsed(trail.before_value)).toEqual({ validTo: '2030-12-31' })
+    expect(parsed(trail.after_value)).toEqual({ validTo: '2030-05-31' })
     // the term that overlapped before now fits
     const next = await engineer.post('/api/billing/contracts', { ...contract, validFrom: '2030-06-01', validTo: '2031-05-31', feeMinor: 110_000 })
     expect(next.status, JSON.stringify(next.body)).toBe(201)

@@ -1,14 +1,16 @@
 // CSV exports: a teardown's measurements and a part's back-to-birth history, byte for byte.
-// KT4-2201 is Marlowe's (team A); the teardown here is inserted with readings chosen by the test
-// and removed afterwards. Expected rows are written from those inputs and from the database rows,
-// never from the export code.
+// On an engine of this file's own (a new KT4-20 leased to Marlowe, team A), with three sessions
+// logged through the API and a teardown inserted with readings chosen by the test; all removed
+// afterwards. Expected rows are written from those inputs and from the database rows, never from
+// the export code.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Client, db, signIn, USERS } from './helpers'
+import { freshEngine, removeFreshEngines, type FreshEngine } from './fresh-engine'
 
-const ENGINE = 'KT4-2201'
 const OPENED = '2026-03-02T07:30:00.000Z'
 const MEASURED = '2026-03-02T10:15:00.000Z'
 
+let engine: FreshEngine
 let teardownId: number
 let partId: number
 let partSerial: string
@@ -24,16 +26,31 @@ const csv = (lines: string[]) => `${lines.join('\r\n')}\r\n`
 const cell = (s: string) => (/[",]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s)
 
 beforeAll(async () => {
-  const engine = await db()('engines').where('serial', ENGINE).first()
-  // The rod fitted at the engine's build: it ran every demo round, whatever later tests swap on this engine.
-  const inst = await db()('installations').where({ engine_id: engine.id, position: 'rod-1' }).orderBy('from_at').orderBy('id').first()
+  engine = await freshEngine('KT4-EXP', { typeCode: 'KT4-20', builtDaysAgo: 300 })
+  const inst = await db()('installations').where({ engine_id: engine.id, position: 'rod-1' }).first()
   const comp = await db()('components').where('id', inst.component_id).first()
   const ct = await db()('component_types').where('id', comp.component_type_id).first()
-  const pos = await db()('engine_type_positions').where({ engine_type_id: engine.engine_type_id, position: 'rod-1' }).first()
+  const pos = await db()('engine_type_positions').where({ engine_type_id: engine.engineTypeId, position: 'rod-1' }).first()
   partId = comp.id
   partSerial = comp.serial
   positionLabel = pos.label
   chars = (typeof ct.characteristics === 'string' ? JSON.parse(ct.characteristics) : ct.characteristics).slice(0, 2)
+  // Two sessions at past rounds of the series (their names hold a comma: the CSV must quote them) and a test.
+  const race = await signIn(USERS.raceA)
+  // A hand-entered histogram covers 0 rpm to 1,000 rpm above the rev limit (KT4-20: 8,000 + 1,000 in 500 rpm bands = 18).
+  const type = await db()('engine_types').where('id', engine.engineTypeId).first('rev_limit_rpm', 'band_width_rpm')
+  const bands = Math.ceil((type.rev_limit_rpm + 1000) / type.band_width_rpm)
+  const rounds = await db()('events').where('series', 'Coastline Touring Cup').where('ends_at', '<', new Date()).orderBy('starts_at', 'desc').limit(2)
+  const logged = [
+    ...rounds.map((ev: any, i: number) => ({ eventId: ev.id, kind: 'race', startedAt: new Date(new Date(ev.starts_at).getTime() + 3_600_000).toISOString(), runningSeconds: 2400 + i * 300, distanceKm: 98.4 + i })),
+    { eventId: null, kind: 'test', startedAt: new Date(Date.now() - 86_400_000).toISOString(), runningSeconds: 1234.5, distanceKm: 41.25 },
+  ]
+  for (const s of logged) {
+    const histogram = Array<number>(bands).fill(0)
+    histogram[Math.floor(bands / 2)] = s.runningSeconds
+    const res = await race.post('/api/sessions', { engineId: engine.id, histogram, ...s })
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+  }
   mechanic = await db()('users').where('email', USERS.mechanicA).first('id', 'name')
   const signer = await db()('users').where('email', USERS.supplierEngineer).first('id')
   const [inserted] = await db()('teardowns').insert({ engine_id: engine.id, reason: 'scheduled', opened_by: mechanic.id, opened_at: new Date(OPENED), state: 'signed off', signed_by: signer.id, signed_at: new Date('2026-03-03T09:00:00Z'), note: 'Export check' })
@@ -49,6 +66,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   if (teardownId) await db()('teardowns').where('id', teardownId).delete()
+  await removeFreshEngines([engine])
 })
 
 async function download(client: Client, path: string) {
@@ -61,13 +79,13 @@ describe('teardown measurements CSV', () => {
     const r = await download(manager, `/api/teardowns/${teardownId}/measurements.csv`)
     expect(r.status).toBe(200)
     expect(r.type).toBe('text/csv; charset=utf-8')
-    expect(r.disposition).toBe(`attachment; filename="teardown-${teardownId}-${ENGINE}-measurements.csv"`)
+    expect(r.disposition).toBe(`attachment; filename="teardown-${teardownId}-${engine.serial}-measurements.csv"`)
     const [a, b] = chars as [(typeof chars)[0], (typeof chars)[0]]
     expect(r.text).toBe(
       csv([
         'teardown,engine,position,serial,removed,characteristic,unit,nominal,min,max,value,verdict,measured_by,measured_at_utc',
-        `${teardownId},${ENGINE},${positionLabel},${partSerial},no,${a.label},${a.unit},${a.nominal},${a.min},${a.max},${a.nominal},in tolerance,${mechanic.name},${MEASURED}`,
-        `${teardownId},${ENGINE},${positionLabel},${partSerial},no,${b.label},${b.unit},${b.nominal},${b.min},${b.max},0.0875,out: high,${mechanic.name},${MEASURED}`,
+        `${teardownId},${engine.serial},${positionLabel},${partSerial},no,${a.label},${a.unit},${a.nominal},${a.min},${a.max},${a.nominal},in tolerance,${mechanic.name},${MEASURED}`,
+        `${teardownId},${engine.serial},${positionLabel},${partSerial},no,${b.label},${b.unit},${b.nominal},${b.min},${b.max},0.0875,out: high,${mechanic.name},${MEASURED}`,
       ]),
     )
   })
@@ -107,7 +125,7 @@ describe('part history CSV', () => {
       }
     }
     lines.sort((x, y) => x.at.localeCompare(y.at) || x.order - y.order)
-    expect(lines.length).toBeGreaterThan(6) // the demo's six rounds of sessions and the build
+    expect(lines.map((l) => l.line.split(',')[0])).toEqual(['installed', 'session', 'session', 'session']) // the build and the three sessions
 
     const r = await download(manager, `/api/parts/${partId}/history.csv`)
     expect(r.status).toBe(200)
