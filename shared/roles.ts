@@ -20,6 +20,8 @@ export const SUPPLIER_ROLES = ['admin', 'supplier_engineer'] as const satisfies 
 export const ANY_ROLE = ROLES
 export const FLEET_READERS = ROLES
 export const SESSION_WRITERS = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'] as const satisfies readonly Role[]
+export const ALLOCATION_READERS = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'] as const satisfies readonly Role[]
+export const ALLOCATION_PLANNERS = ['admin', 'supplier_engineer', 'team_manager'] as const satisfies readonly Role[]
 export const USER_MANAGERS = ['admin', 'team_manager'] as const satisfies readonly Role[]
 
 export function roleFitsOrganisation(role: Role, kind: OrganisationKind): boolean {
