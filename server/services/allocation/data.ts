@@ -6,7 +6,7 @@ import { headroomFresh, headroomNow, rebuildWeek, type AllocEngine, type AllocEv
 import type { AllocationEventDto, AllocationWeekDto } from '#shared/types/allocation'
 import type { Actor } from '../../utils/guard'
 import { ownTeam, scopeOrganisations } from '../../utils/guard'
-import { badRequest, notFound } from '../../utils/errors'
+import { notFound } from '../../utils/errors'
 import { iso } from '../../utils/db'
 import { fleetLife } from '../life'
 import { lifeConfig, loadComponentTypes, loadEngineTypes } from '../fleet-data'
@@ -26,10 +26,13 @@ export interface TeamRef {
   supplierId: number
 }
 
-/** The team planned for: the actor's own, or the one a supplier or admin names (404 when not theirs). */
+/**
+ * The team planned for: the one named (404 when the actor may not see it), else the actor's own,
+ * else (a supplier or an admin) the first of its teams by name.
+ */
 export async function resolveTeam(db: Db, actor: Actor, teamId: number | undefined): Promise<TeamRef> {
-  const id = teamId ?? ownTeam(actor)
-  if (id === null) badRequest('Invalid input: teamId: choose the team to plan for')
+  const id = teamId ?? ownTeam(actor) ?? (await teamsFor(db, actor))[0]?.id
+  if (id === undefined) notFound('Team')
   const row = await scopeOrganisations(db('organisations').where({ id, kind: 'team' }), actor).first('id', 'name', 'supplier_id')
   if (!row) notFound('Team')
   return { id: row.id, name: row.name, supplierId: row.supplier_id }
