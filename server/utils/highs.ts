@@ -29,7 +29,7 @@ export interface LpAnswer {
 /** Solves a CPLEX LP-format model; the columns come back by name. Each call uses a fresh native solver. */
 export async function solveLp(lp: string, opts: { timeLimitS?: number } = {}): Promise<LpAnswer> {
   const solver = await highs()
-  const result = solver.solve(lp, { output_flag: false, time_limit: opts.timeLimitS ?? 20 })
+  const result = solver.solve(lp, { output_flag: false, time_limit: opts.timeLimitS ?? 15 })
   const values: Record<string, number> = {}
   for (const [name, col] of Object.entries(result.Columns ?? {})) values[name] = (col as { Primal?: number }).Primal ?? 0
   return { status: result.Status, objective: (result as { ObjectiveValue?: number }).ObjectiveValue, values }

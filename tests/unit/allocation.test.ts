@@ -175,8 +175,9 @@ describe('allocation solved by HiGHS against hand-worked optima', () => {
     const input: AllocationInput = { now: NOW, events: [R1, R2], entries: [{ id: 11, eventId: 1, chassis: 'A', plannedSeconds: 3 * H }, { id: 21, eventId: 2, chassis: 'A', plannedSeconds: 3 * H }], engines: [engine(1, 10)], capacity: weeksOpen(2) }
     const { lp } = buildAllocationModel(input)
     expect(lp.match(/^ fill_\d+:/gm)).toHaveLength(2)
-    expect(lp).toContain(' cap_20270222: y_0_0 <= 2')
-    expect(lp).toContain(' cap_20270315: y_0_1 <= 2')
+    // Rebuilt before round 1 for round 1 alone (b_0_0_1) or for both rounds (b_0_0_2); before round 2 (b_0_1_2).
+    expect(lp).toContain(' cap_20270222: b_0_0_1 + b_0_0_2 <= 2')
+    expect(lp).toContain(' cap_20270315: b_0_1_2 <= 2')
   })
 })
 

@@ -35,7 +35,7 @@ export async function proposeAllocation(db: Knex, actor: Actor, teamId: number |
   const { input } = await loadInput(db, team, now)
   if (!input.entries.length) badRequest('Invalid input: entries: enter the cars for at least one coming event first')
   const outcome = await solveAllocation(input, (lp) => solveLp(lp))
-  return { outcome, check: outcome.status === 'optimal' ? checkPlan(input, outcome.plan) : null }
+  return { outcome, check: outcome.status === 'optimal' || outcome.status === 'feasible' ? checkPlan(input, outcome.plan) : null }
 }
 
 /**

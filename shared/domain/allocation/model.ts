@@ -1,13 +1,15 @@
 // The allocation as a mixed-integer model in CPLEX LP text, and the solver's answer read back.
 // Pure: the server hands the text to the solver and the columns back here.
 //
-// Variables, engine i, event k (date order), entry j:
-//   x_i_j  binary  engine i runs entry j
-//   y_i_k  binary  engine i is rebuilt in the workshop slot before event k
-//   u_i_k  hours   life used since the engine's last rebuild, after event k, measured so that the
-//                  warning level sits at the engine's fresh headroom F_i (the present build starts
-//                  at F_i - headroom, so "u <= F_i" is "no part reaches its warning level")
-//   z_i_k  hours   hours left to the warning level after event k when engine i ran it (0 otherwise)
+// Each engine's season is a path of builds: a build covers a run of consecutive events (those of
+// the engine's series, in date order), the first one on the present build or after a rebuild,
+// every later one after a rebuild in the workshop slot before its first event. Variables, engine i:
+//   b_i_a    binary  build period a (events s .. e-1, present build or rebuilt before s) is used
+//   x_i_j_a  binary  engine i runs entry j during build period a
+//   z_i_a_k  hours   hours left to the warning level after event k when engine i ran it in period a
+// A build period's running stays within its hours to the warning level (present or fresh), so no
+// engine reaches a warning level during an event. Writing the periods out, rather than tracking
+// used life with big-M resets, keeps the relaxation tight: the solver proves optima in moments.
 // Objective: the least summed leftover (the engine whose life fits the running most tightly),
 // ties broken by fewer rebuilds (a rebuild weighs 0.01 h), then by the tighter fit at the earlier
 // event (each event's leftover weighs 1e-5 more than the next one's, far below either).
@@ -53,118 +55,143 @@ function sum(terms: [number, string][]): string {
 export function buildAllocationModel(input: AllocationInput, opts: { diagnose?: boolean } = {}): BuiltModel {
   const diagnose = opts.diagnose === true
   const events = eventsInOrder(input.events)
+  const order = new Map(events.map((e, k) => [e.id, k]))
   const entriesOf = (eventId: number) => input.entries.filter((e) => e.eventId === eventId)
   const columns: BuiltModel['columns'] = new Map()
   const elastic: BuiltModel['elastic'] = new Map()
   const obj: [number, string][] = []
   const rows: string[] = []
-  const bounds: string[] = ['zero = 0']
   const binaries: string[] = []
   const entryIndex = new Map(input.entries.map((e, j) => [e.id, j]))
-  const eventById = new Map(events.map((e) => [e.id, e]))
+  const byEntry = new Map<number, string[]>(input.entries.map((e) => [e.id, []]))
+  const weekRebuilds = new Map<string, string[]>()
 
-  // x columns: only where the engine may run the event and a fresh build could carry the entry.
-  const x = (i: number, j: number) => `x_${i}_${j}`
-  const xs = new Map<string, boolean>()
   input.engines.forEach((eng, i) => {
-    for (const entry of input.entries) {
-      if (!mayRun(eng, entry.eventId) || hoursOf(entry.plannedSeconds) > eng.freshHeadroomHours + 1e-9) continue
-      const name = x(i, entryIndex.get(entry.id)!)
-      xs.set(name, true)
-      columns.set(name, { kind: 'x', engineId: eng.id, entryId: entry.id })
-      binaries.push(name)
+    const own = events.filter((ev) => mayRun(eng, ev.id))
+    const nEv = own.length
+    if (!nEv) return
+    const F = eng.freshHeadroomHours
+    const H0 = startHeadroom(eng)
+    // Build periods: [s, e) with the present build (s = 0 only) or rebuilt before own[s].
+    const periods: { name: string; s: number; e: number; rebuilt: boolean; cap: number }[] = []
+    for (let s = 0; s < nEv; s++) {
+      for (let e = s + 1; e <= nEv; e++) {
+        if (s === 0) periods.push({ name: `b_${i}_p_${e}`, s, e, rebuilt: false, cap: H0 })
+        const open = slotOpen(own[s]!, input.now)
+        if (open || diagnose) periods.push({ name: `b_${i}_${s}_${e}`, s, e, rebuilt: true, cap: F })
+      }
+    }
+    const xName = (j: number, p: { name: string }) => `x_${p.name.slice(2)}_${j}`
+    const xsOf = new Map<string, { j: number; entryId: number; k: number; hours: number }[]>()
+    for (const p of periods) {
+      binaries.push(p.name)
+      const xs: { j: number; entryId: number; k: number; hours: number }[] = []
+      for (let k = p.s; k < p.e; k++) {
+        for (const entry of entriesOf(own[k]!.id)) {
+          const hours = hoursOf(entry.plannedSeconds)
+          if (hours > p.cap + 1e-9) continue
+          const j = entryIndex.get(entry.id)!
+          const name = xName(j, p)
+          xs.push({ j, entryId: entry.id, k, hours })
+          binaries.push(name)
+          columns.set(name, { kind: 'x', engineId: eng.id, entryId: entry.id })
+          byEntry.get(entry.id)!.push(name)
+        }
+      }
+      xsOf.set(p.name, xs)
+      // At most one entry per event, and only in a period that is used.
+      for (let k = p.s; k < p.e; k++) {
+        const here = xs.filter((x) => x.k === k)
+        if (here.length) rows.push(` one_${p.name.slice(2)}_${k}: ${sum([...here.map((x) => [1, xName(x.j, p)] as [number, string]), [-1, p.name]])} <= 0`)
+      }
+      // The period's running stays within its hours to the warning level.
+      if (xs.length) rows.push(` life_${p.name.slice(2)}: ${sum([...xs.map((x) => [x.hours, xName(x.j, p)] as [number, string]), [-p.cap, p.name]])} <= 0`)
+      if (p.rebuilt) {
+        const ev = own[p.s]!
+        columns.set(p.name, { kind: 'y', engineId: eng.id, eventId: ev.id })
+        obj.push([diagnose ? 0 : REBUILD_WEIGHT, p.name])
+        const week = rebuildWeek(ev)
+        weekRebuilds.set(week, [...(weekRebuilds.get(week) ?? []), p.name])
+        if (!slotOpen(ev, input.now)) {
+          obj.push([COST_LEAD, p.name])
+          elastic.set(p.name, { kind: 'lead-time', engineId: eng.id, eventId: ev.id, message: `${eng.serial} would need a rebuild before ${ev.name}, but the workshop's slot for it (${ev.rebuildLeadDays} days ahead) has already opened` })
+        }
+      }
+    }
+    // One path of build periods through the engine's events.
+    for (let t = 0; t <= nEv; t++) {
+      const into = periods.filter((p) => p.e === t).map((p) => [1, p.name] as [number, string])
+      const out = periods.filter((p) => p.s === t).map((p) => [-1, p.name] as [number, string])
+      if (t === 0) rows.push(` path_${i}_0: ${sum(out.map(([, v]) => [1, v] as [number, string]))} = 1`)
+      else if (t < nEv) rows.push(` path_${i}_${t}: ${sum([...into, ...out])} = 0`)
+    }
+    // A rebuild before own[s] rules out the earlier events that end after its slot opens.
+    for (let s = 1; s < nEv; s++) {
+      const rebuilds = periods.filter((p) => p.rebuilt && p.s === s).map((p) => p.name)
+      if (!rebuilds.length) continue
+      for (const m of blockedByRebuild(events, own[s]!)) {
+        const km = own.findIndex((ev) => ev.id === m.id)
+        if (km < 0) continue
+        const runs = periods.flatMap((p) => (xsOf.get(p.name) ?? []).filter((x) => x.k === km).map((x) => xName(x.j, p)))
+        if (!runs.length) continue
+        const terms: [number, string][] = [...runs.map((v) => [1, v] as [number, string]), ...rebuilds.map((v) => [1, v] as [number, string])]
+        if (diagnose) {
+          const sl = `sl_${i}_${s}_${m.id}`
+          terms.push([-1, sl])
+          obj.push([COST_LEAD, sl])
+          elastic.set(sl, { kind: 'lead-time', engineId: eng.id, eventId: own[s]!.id, message: `${eng.serial} cannot both run ${m.name} and be in the workshop ${own[s]!.rebuildLeadDays} days before ${own[s]!.name} for its rebuild` })
+        }
+        rows.push(` lead_${i}_${s}_${m.id}: ${sum(terms)} <= 1`)
+      }
+    }
+    // Hours left after event k when the engine ran it in period p: the period's hours less its
+    // running so far (one leftover per period keeps the relaxation tight).
+    if (!diagnose) {
+      for (const p of periods) {
+        const xs = xsOf.get(p.name) ?? []
+        for (let k = p.s; k < p.e; k++) {
+          const terms: [number, string][] = []
+          for (const x of xs) {
+            if (x.k === k) terms.push([p.cap - x.hours, xName(x.j, p)])
+            else if (x.k < k) terms.push([-x.hours, xName(x.j, p)])
+          }
+          if (!terms.some(([c]) => c > 0)) continue
+          const z = `z_${p.name.slice(2)}_${k}`
+          rows.push(` left_${p.name.slice(2)}_${k}: ${sum([[1, z], ...terms.map(([c, v]) => [-c, v] as [number, string])])} >= 0`)
+          obj.push([1 + EARLIER_WEIGHT * (events.length - 1 - (order.get(own[k]!.id) ?? 0)), z])
+        }
+      }
     }
   })
-  const xOf = (i: number, entryId: number) => (xs.has(x(i, entryIndex.get(entryId)!)) ? x(i, entryIndex.get(entryId)!) : null)
 
   // Each entry gets exactly one engine.
   for (const entry of input.entries) {
     const j = entryIndex.get(entry.id)!
-    const terms: [number, string][] = input.engines.map((_, i) => xOf(i, entry.id)).filter((v): v is string => v !== null).map((v) => [1, v])
+    const terms: [number, string][] = (byEntry.get(entry.id) ?? []).map((v) => [1, v])
     if (diagnose) {
-      const s = `sf_${j}`
-      terms.push([1, s])
-      obj.push([COST_UNFILLED, s])
-      const ev = eventById.get(entry.eventId)
-      elastic.set(s, { kind: 'unfilled', entryId: entry.id, eventId: entry.eventId, message: `No engine can run ${entry.chassis} at ${ev?.name ?? 'its event'} (${n(hoursOf(entry.plannedSeconds))} h planned): every engine of the series is on another entry, short of life before its warning level, or cannot be rebuilt in time` })
+      const sf = `sf_${j}`
+      terms.push([1, sf])
+      obj.push([COST_UNFILLED, sf])
+      const ev = events.find((e) => e.id === entry.eventId)
+      elastic.set(sf, { kind: 'unfilled', entryId: entry.id, eventId: entry.eventId, message: `No engine can run ${entry.chassis} at ${ev?.name ?? 'its event'} (${n(hoursOf(entry.plannedSeconds))} h planned): every engine of the series is on another entry, short of life before its warning level, or cannot be rebuilt in time` })
     }
     rows.push(` fill_${j}: ${sum(terms)} = 1`)
   }
 
-  const weekRebuilds = new Map<string, string[]>()
-  input.engines.forEach((eng, i) => {
-    const F = eng.freshHeadroomHours
-    let prevU: string | null = null
-    const offset = F - startHeadroom(eng)
-    events.forEach((ev, k) => {
-      if (!mayRun(eng, ev.id)) return
-      const run: [number, string][] = entriesOf(ev.id).map((e) => [hoursOf(e.plannedSeconds), xOf(i, e.id)] as [number, string | null]).filter((t): t is [number, string] => t[1] !== null)
-      const ran: [number, string][] = run.map(([, v]) => [1, v])
-      // At most one entry per engine and event.
-      if (ran.length > 1) rows.push(` one_${i}_${k}: ${sum(ran)} <= 1`)
-      const u = `u_${i}_${k}`
-      const y = `y_${i}_${k}`
-      const open = slotOpen(ev, input.now)
-      const hasY = open || diagnose
-      if (hasY) {
-        binaries.push(y)
-        columns.set(y, { kind: 'y', engineId: eng.id, eventId: ev.id })
-        obj.push([diagnose ? 0 : REBUILD_WEIGHT, y])
-        const week = rebuildWeek(ev)
-        weekRebuilds.set(week, [...(weekRebuilds.get(week) ?? []), y])
-        if (!open) {
-          const s = `sp_${i}_${k}`
-          rows.push(` past_${i}_${k}: ${y} - ${s} <= 0`)
-          obj.push([COST_LEAD, s])
-          elastic.set(s, { kind: 'lead-time', engineId: eng.id, eventId: ev.id, message: `${eng.serial} would need a rebuild before ${ev.name}, but the workshop's slot for it (${ev.rebuildLeadDays} days ahead) has already opened` })
-        }
-        // A rebuild before k rules out the earlier events that end after its slot opens.
-        for (const m of blockedByRebuild(events, ev)) {
-          const mRan = entriesOf(m.id).map((e) => xOf(i, e.id)).filter((v): v is string => v !== null)
-          if (!mRan.length) continue
-          const terms: [number, string][] = [...mRan.map((v) => [1, v] as [number, string]), [1, y]]
-          if (diagnose) {
-            const s = `sl_${i}_${k}_${m.id}`
-            terms.push([-1, s])
-            obj.push([COST_LEAD, s])
-            elastic.set(s, { kind: 'lead-time', engineId: eng.id, eventId: ev.id, message: `${eng.serial} cannot both run ${m.name} and be in the workshop ${ev.rebuildLeadDays} days before ${ev.name} for its rebuild` })
-          }
-          rows.push(` lead_${i}_${k}_${m.id}: ${sum(terms)} <= 1`)
-        }
-      }
-      const yTerm: [number, string][] = hasY ? [[F, y]] : []
-      const negRun = run.map(([c, v]) => [-c, v] as [number, string])
-      // u_k = (1 - y_k) u_{k-1} + run_k, written as four linear rows (exact for binary y).
-      const prev: [number, string][] = prevU ? [[-1, prevU]] : []
-      const prevConst = prevU ? 0 : offset
-      rows.push(` ua_${i}_${k}: ${sum([[1, u], ...prev, ...negRun, ...yTerm])} >= ${n(prevConst)}`)
-      rows.push(` ub_${i}_${k}: ${sum([[1, u], ...negRun])} >= 0`)
-      rows.push(` uc_${i}_${k}: ${sum([[1, u], ...prev, ...negRun])} <= ${n(prevConst)}`)
-      if (hasY) rows.push(` ud_${i}_${k}: ${sum([[1, u], ...negRun, ...yTerm])} <= ${n(F)}`)
-      bounds.push(`0 <= ${u} <= ${n(F)}`)
-      if (!diagnose && ran.length) {
-        const z = `z_${i}_${k}`
-        rows.push(` sl_${i}_${k}: ${sum([[1, z], [1, u], ...ran.map(([, v]) => [-F, v] as [number, string])])} >= 0`)
-        obj.push([1 + EARLIER_WEIGHT * (events.length - 1 - k), z])
-      }
-      prevU = u
-    })
-  })
-
   // The workshop's rebuilds per week.
-  for (const [week, ys] of [...weekRebuilds.entries()].sort()) {
+  for (const [week, bs] of [...weekRebuilds.entries()].sort()) {
     const cap = capacityOf(input, week)
-    const terms: [number, string][] = ys.map((v) => [1, v])
+    const terms: [number, string][] = bs.map((v) => [1, v])
     if (diagnose) {
-      const s = `sc_${week.replaceAll('-', '')}`
-      terms.push([-1, s])
-      obj.push([COST_CAPACITY, s])
-      elastic.set(s, { kind: 'capacity', weekStart: week, message: `The workshop can take ${cap} rebuild${cap === 1 ? '' : 's'} in the week of ${week}; the entries need more` })
+      const sc = `sc_${week.replaceAll('-', '')}`
+      terms.push([-1, sc])
+      obj.push([COST_CAPACITY, sc])
+      elastic.set(sc, { kind: 'capacity', weekStart: week, message: `The workshop can take ${cap} rebuild${cap === 1 ? '' : 's'} in the week of ${week}; the entries need more` })
     }
     rows.push(` cap_${week.replaceAll('-', '')}: ${sum(terms)} <= ${cap}`)
   }
 
-  const lp = ['Minimize', ` obj: ${sum(obj)}`, 'Subject To', ...rows, 'Bounds', ...bounds.map((b) => ` ${b}`), ...(binaries.length ? ['Binaries', ` ${binaries.join(' ')}`] : []), 'End', ''].join('\n')
+  const lp = ['Minimize', ` obj: ${sum(obj)}`, 'Subject To', ...rows, 'Bounds', ' zero = 0', ...(binaries.length ? ['Binaries', ` ${binaries.join(' ')}`] : []), 'End', ''].join('\n')
   return { lp, columns, elastic }
 }
 
@@ -204,6 +231,13 @@ export async function solveAllocation(input: AllocationInput, solveLp: (lp: stri
   const model = buildAllocationModel(input)
   const answer = await solveLp(model.lp)
   if (answer.status === 'Optimal') return { status: 'optimal', plan: readPlan(model, answer.values), objective: answer.objective ?? 0 }
+  if (answer.status === 'Time limit reached') {
+    // Stopped before proving the best: keep its best plan when that plan fills every entry.
+    const plan = readPlan(model, answer.values)
+    const filled = new Set(plan.assignments.map((a) => a.entryId))
+    if (input.entries.every((e) => filled.has(e.id))) return { status: 'feasible', plan, objective: answer.objective ?? 0 }
+    return { status: 'error', message: 'The solver found no plan within its time limit; try fewer events at once' }
+  }
   if (answer.status !== 'Infeasible') return { status: 'error', message: `The solver stopped without a plan (${answer.status})` }
   const diag = buildAllocationModel(input, { diagnose: true })
   const d = await solveLp(diag.lp)

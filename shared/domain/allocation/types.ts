@@ -112,5 +112,7 @@ export interface Unmet {
 
 export type SolveOutcome =
   | { status: 'optimal'; plan: ProposedPlan; objective: number }
+  /** the best plan the solver found within its time limit, every rule met but not proven the best */
+  | { status: 'feasible'; plan: ProposedPlan; objective: number }
   | { status: 'infeasible'; unmet: Unmet[] }
   | { status: 'error'; message: string }
