@@ -73,7 +73,8 @@ describe('allocation solved by HiGHS against hand-worked optima', () => {
   it('rebuilds where the engine runs out, and only once', async () => {
     // One engine (4 h now, 10 h fresh), three rounds of 3 h. After round 1 it has 1 h: it must be
     // rebuilt before round 2 (before round 3 would be too late). Leftovers 1, 7, 4; one rebuild.
-    // Objective 1 (1 + 2e-5) + 7 (1 + 1e-5) + 4 + 0.01 = 12.01009.
+    // Objective 1 (1 + 2e-5) + 7 (1 + 1e-5) + 4 + 0.01 (1 + 1e-3), the rebuild one event before
+    // the last = 12.0101.
     const input: AllocationInput = {
       now: NOW,
       events: [R1, R2, R3],
@@ -85,7 +86,7 @@ describe('allocation solved by HiGHS against hand-worked optima', () => {
     expect(out.status).toBe('optimal')
     if (out.status !== 'optimal') return
     expect(out.plan.rebuilds).toEqual([{ engineId: 1, beforeEventId: 2 }])
-    expect(out.objective).toBeCloseTo(12.01009, 5)
+    expect(out.objective).toBeCloseTo(12.0101, 6)
     const check = checkPlan(input, out.plan)
     expect(check.violations).toEqual([])
     expect(check.rows.map((r) => r.headroomAfter)).toEqual([1, 7, 4])
@@ -213,6 +214,14 @@ describe('a plan changed by hand', () => {
     expect(check.violations.map((v) => v.kind).sort()).toEqual(['double', 'unfilled'])
     expect(check.violations.find((v) => v.kind === 'unfilled')!.message).toBe('A at Round 2 has no engine')
     expect(check.violations.find((v) => v.kind === 'double')!.message).toBe('E1 is on 2 entries at Round 1; an engine runs one car per event')
+  })
+
+  it('never implies a rebuild inside an event: one engine on both cars runs past its warning level', () => {
+    // E3 has 5 h: the first car leaves 2 h, the second car's 3 h would take it 1 h past.
+    const check = checkPlan(input, { assignments: [{ entryId: 11, engineId: 3 }, { entryId: 12, engineId: 3 }, { entryId: 21, engineId: 1 }] })
+    expect(check.rebuilds).toEqual([])
+    expect(check.violations.map((v) => v.kind).sort()).toEqual(['double', 'life'])
+    expect(check.violations.find((v) => v.kind === 'life')!.message).toBe('E3 would reach its warning level during Round 1: 3.0 h planned, 2.0 h left (life)')
   })
 
   it('reports an engine whose life cannot carry the entry even after a rebuild', () => {

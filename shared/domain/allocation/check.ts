@@ -85,7 +85,9 @@ export function checkPlan(input: AllocationInput, plan: { assignments: PlanAssig
         violations.push({ kind: 'not-eligible', entryId: entry.id, eventId: ev.id, engineId: eng.id, message: `${eng.serial} cannot run ${ev.name}: it is not an engine of that event's series` })
       }
       const wasRebuilt = rebuilds.some((r) => r.engineId === eng.id && r.beforeEventId === ev.id)
-      if (!wasRebuilt && hours > (headroom.get(eng.id) ?? 0) + EPS && hours <= eng.freshHeadroomHours + EPS) rebuildHere(eng.id)
+      // No rebuild inside an event: an engine put on a second car here is reported as it runs.
+      const ranHere = (ranAt.get(eng.id) ?? []).includes(ev.id)
+      if (!wasRebuilt && !ranHere && hours > (headroom.get(eng.id) ?? 0) + EPS && hours <= eng.freshHeadroomHours + EPS) rebuildHere(eng.id)
       const rebuiltBefore = rebuilds.some((r) => r.engineId === eng.id && r.beforeEventId === ev.id)
       const before = headroom.get(eng.id) ?? 0
       const after = before - hours

@@ -12,7 +12,8 @@
 // used life with big-M resets, keeps the relaxation tight: the solver proves optima in moments.
 // Objective: the least summed leftover (the engine whose life fits the running most tightly),
 // ties broken by fewer rebuilds (a rebuild weighs 0.01 h), then by the tighter fit at the earlier
-// event (each event's leftover weighs 1e-5 more than the next one's, far below either).
+// event (each event's leftover weighs 1e-5 more than the next one's, far below either), then by
+// the later rebuild.
 import { blockedByRebuild, capacityOf, eventsInOrder, hoursOf, mayRun, rebuildWeek, slotOpen, startHeadroom } from './calendar'
 import type { AllocationInput, ProposedPlan, SolveOutcome, Unmet } from './types'
 
@@ -109,7 +110,8 @@ export function buildAllocationModel(input: AllocationInput, opts: { diagnose?: 
       if (p.rebuilt) {
         const ev = own[p.s]!
         columns.set(p.name, { kind: 'y', engineId: eng.id, eventId: ev.id })
-        obj.push([diagnose ? 0 : REBUILD_WEIGHT, p.name])
+        // A rebuild as late as it can be, just before the engine is needed (a thousandth of its weight per event earlier).
+        obj.push([diagnose ? 0 : REBUILD_WEIGHT * (1 + 1e-3 * (nEv - 1 - p.s)), p.name])
         const week = rebuildWeek(ev)
         weekRebuilds.set(week, [...(weekRebuilds.get(week) ?? []), p.name])
         if (!slotOpen(ev, input.now)) {
