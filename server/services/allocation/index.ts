@@ -6,7 +6,7 @@ import { checkPlan, rebuildWeek, solveAllocation } from '#shared/domain/allocati
 import type { AllocationAcceptSchema, EventEntriesSchema, WorkshopWeekSchema } from '#shared/schemas/allocation'
 import type { AllocationDto, AllocationSolveDto } from '#shared/types/allocation'
 import type { Actor } from '../../utils/guard'
-import { canReadCatalogue, canWriteCatalogue } from '../../utils/guard'
+import { canReadCatalogue, canWriteCatalogue, catalogueOwner } from '../../utils/guard'
 import { audit } from '../../utils/audit'
 import { badRequest, conflict, notFound } from '../../utils/errors'
 import { solveLp } from '../../utils/highs'
@@ -86,8 +86,9 @@ export async function acceptAllocation(db: Knex, actor: Actor, body: z.infer<typ
 export async function saveEventEntries(db: Knex, actor: Actor, body: z.infer<typeof EventEntriesSchema>, now = new Date()) {
   const team = await resolveTeam(db, actor, body.teamId)
   return db.transaction(async (trx) => {
-    const ev = await trx('events').where('id', body.eventId).first()
-    if (!ev || !canReadCatalogue(actor, ev.supplier_id) || ev.supplier_id !== team.supplierId) notFound('Event')
+    // An event of the team's supplier's calendar, and one the actor may read.
+    const ev = await trx('events').where({ id: body.eventId, supplier_id: team.supplierId }).first()
+    if (!ev || !canReadCatalogue(actor, ev.supplier_id)) notFound('Event')
     if (new Date(ev.starts_at) <= now) conflict(`${ev.name} has started; entries are for coming events`)
     const before = await trx('event_entries').where({ event_id: ev.id, team_id: team.id }).select('chassis', 'planned_seconds')
     await trx('event_entries').where({ event_id: ev.id, team_id: team.id }).delete()
@@ -99,8 +100,8 @@ export async function saveEventEntries(db: Knex, actor: Actor, body: z.infer<typ
 
 /** Sets the workshop's rebuilds for one week (the supplier's own workshop). */
 export async function setWorkshopWeek(db: Knex, actor: Actor, body: z.infer<typeof WorkshopWeekSchema>) {
-  const supplierId = actor.supplierId
-  if (!canWriteCatalogue(actor, supplierId)) notFound('Workshop')
+  const supplierId = catalogueOwner(actor)
+  if (supplierId === null || !canWriteCatalogue(actor, supplierId)) notFound('Workshop')
   return db.transaction(async (trx) => {
     const before = await trx('workshop_weeks').where({ supplier_id: supplierId, week_start: body.weekStart }).first()
     if (before) await trx('workshop_weeks').where('id', before.id).update({ rebuilds: body.rebuilds })
