@@ -144,6 +144,7 @@ function headroomTimeline(input: AllocationInput, rows: PlanRow[]) {
 
 /** Why each engine: its headroom against the running, and how the other free engines would have fitted. */
 function explain(input: AllocationInput, rows: PlanRow[], at: Map<string, number>) {
+  const order = new Map(eventsInOrder(input.events).map((e, k) => [e.id, k]))
   for (const row of rows) {
     if (row.engineId === null || row.headroomBefore === null || row.headroomAfter === null) continue
     const busy = new Set(rows.filter((r) => r.eventId === row.eventId && r.engineId !== null).map((r) => r.engineId))
@@ -156,7 +157,10 @@ function explain(input: AllocationInput, rows: PlanRow[], at: Map<string, number
     let alt: string
     if (!others.length) alt = ' No other free engine could run it without a rebuild.'
     else if (others[0]!.left >= row.headroomAfter - EPS) alt = ` Tightest fit: the next free engine, ${others[0]!.serial}, would leave ${fmtHours(others[0]!.left)}.`
-    else alt = ` ${others[0]!.serial} would fit tighter here (leaves ${fmtHours(others[0]!.left)}) but its life is used better at another event.`
+    else {
+      const later = rows.find((r) => r.serial === others[0]!.serial && (order.get(r.eventId) ?? 0) > (order.get(row.eventId) ?? 0))
+      alt = ` ${others[0]!.serial} would fit tighter here (leaves ${fmtHours(others[0]!.left)})${later ? '; its life is kept for a later event' : ''}.`
+    }
     row.reason = row.headroomAfter < -EPS ? base : base + alt
   }
 }
