@@ -250,3 +250,15 @@ describe('hours to the warning level (hand-computed)', () => {
     expect(headroomNow(worn)).toEqual({ hours: 0, governing: 'Crankshaft C-1: events' })
   })
 })
+
+describe('a plan cut off by the solver time limit', () => {
+  it('has an early rebuild moved to just before the engine next runs, where every rule still holds', async () => {
+    const { laterRebuilds } = await import('../../shared/domain/allocation')
+    // E1 (due now, 10 h fresh) runs only round 3; a rebuild before round 1 becomes one before round 3.
+    const input: AllocationInput = { now: NOW, events: [R1, R2, R3], entries: [{ id: 31, eventId: 3, chassis: 'A', plannedSeconds: 3 * H }], engines: [engine(1, 0, 10)], capacity: weeksOpen(1) }
+    expect(laterRebuilds(input, { assignments: [{ entryId: 31, engineId: 1 }], rebuilds: [{ engineId: 1, beforeEventId: 1 }] }).rebuilds).toEqual([{ engineId: 1, beforeEventId: 3 }])
+    // With no room in round 3's week it stays where it was.
+    const full = { ...input, capacity: { ...input.capacity, [rebuildWeek(R3)]: 0 } }
+    expect(laterRebuilds(full, { assignments: [{ entryId: 31, engineId: 1 }], rebuilds: [{ engineId: 1, beforeEventId: 1 }] }).rebuilds).toEqual([{ engineId: 1, beforeEventId: 1 }])
+  })
+})

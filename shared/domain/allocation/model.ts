@@ -15,6 +15,7 @@
 // event (each event's leftover weighs 1e-5 more than the next one's, far below either), then by
 // the later rebuild.
 import { blockedByRebuild, capacityOf, eventsInOrder, hoursOf, mayRun, rebuildWeek, slotOpen, startHeadroom } from './calendar'
+import { checkPlan } from './check'
 import type { AllocationInput, ProposedPlan, SolveOutcome, Unmet } from './types'
 
 export const REBUILD_WEIGHT = 0.01
@@ -218,6 +219,25 @@ export function readUnmet(model: BuiltModel, values: Record<string, number>): Un
   return unmet.sort((a, b) => order[a.kind] - order[b.kind])
 }
 
+/**
+ * A plan cut off by the time limit may rebuild an engine events before it runs again; the
+ * optimum would not (the later rebuild breaks ties). Each such rebuild is moved to just before
+ * the engine's next run wherever the plan then still meets every rule.
+ */
+export function laterRebuilds(input: AllocationInput, plan: ProposedPlan): ProposedPlan {
+  const events = eventsInOrder(input.events)
+  const eventOfEntry = new Map(input.entries.map((e) => [e.id, e.eventId]))
+  let best = plan
+  for (const r of plan.rebuilds) {
+    const from = events.findIndex((e) => e.id === r.beforeEventId)
+    const next = events.slice(from).find((ev) => best.assignments.some((a) => a.engineId === r.engineId && eventOfEntry.get(a.entryId) === ev.id))
+    if (!next || next.id === r.beforeEventId) continue
+    const moved = { ...best, rebuilds: best.rebuilds.map((x) => (x === r || (x.engineId === r.engineId && x.beforeEventId === r.beforeEventId) ? { engineId: r.engineId, beforeEventId: next.id } : x)) }
+    if (checkPlan(input, moved).violations.length === 0) best = moved
+  }
+  return best
+}
+
 export interface SolverAnswer {
   status: string
   objective?: number
@@ -237,7 +257,7 @@ export async function solveAllocation(input: AllocationInput, solveLp: (lp: stri
     // Stopped before proving the best: keep its best plan when that plan fills every entry.
     const plan = readPlan(model, answer.values)
     const filled = new Set(plan.assignments.map((a) => a.entryId))
-    if (input.entries.every((e) => filled.has(e.id))) return { status: 'feasible', plan, objective: answer.objective ?? 0 }
+    if (input.entries.every((e) => filled.has(e.id))) return { status: 'feasible', plan: laterRebuilds(input, plan), objective: answer.objective ?? 0 }
     return { status: 'error', message: 'The solver found no plan within its time limit; try fewer events at once' }
   }
   if (answer.status !== 'Infeasible') return { status: 'error', message: `The solver stopped without a plan (${answer.status})` }
