@@ -57,4 +57,6 @@ export default defineNuxtConfig({
   // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
   auth: { loadStrategy: 'none' },
   typescript: { strict: true },
+  // The allocation solver (HiGHS) loads its WebAssembly file by path beside the traced package.
+  nitro: { externals: { traceInclude: ['node_modules/highs/build/highs.wasm'] } },
 })

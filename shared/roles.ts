@@ -22,6 +22,8 @@ export const FLEET_READERS = ROLES
 export const SESSION_WRITERS = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'] as const satisfies readonly Role[]
 /** Void or restore a session: the team's race engineer (its own team's sessions), the supplier's engineer, an admin. */
 export const SESSION_VOIDERS = ['admin', 'supplier_engineer', 'race_engineer'] as const satisfies readonly Role[]
+export const ALLOCATION_READERS = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'] as const satisfies readonly Role[]
+export const ALLOCATION_PLANNERS = ['admin', 'supplier_engineer', 'team_manager'] as const satisfies readonly Role[]
 export const USER_MANAGERS = ['admin', 'team_manager'] as const satisfies readonly Role[]
 
 export function roleFitsOrganisation(role: Role, kind: OrganisationKind): boolean {

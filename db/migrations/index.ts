@@ -23,6 +23,8 @@ import * as traceOverview from './20261204_04_trace-overview'
 import * as billingContacts from './20261204_06_a_billing_contacts'
 import * as leaseContracts from './20261204_06_b_lease_contracts'
 import * as statements from './20261204_06_c_statements'
+import * as eventEntries from './20261205_02_a_event_entries'
+import * as workshopCapacity from './20261205_02_b_workshop_capacity'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -50,6 +52,8 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_06_a_billing_contacts': billingContacts,
   '20261204_06_b_lease_contracts': leaseContracts,
   '20261204_06_c_statements': statements,
+  '20261205_02_a_event_entries': eventEntries,
+  '20261205_02_b_workshop_capacity': workshopCapacity,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

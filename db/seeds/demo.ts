@@ -7,6 +7,7 @@ import { seedBilling } from './billing'
 import { seedFleet } from './fleet'
 import { seedOil } from './oil'
 import { seedTeardowns } from './teardowns'
+import { seedAllocation } from './allocation'
 
 export const DEMO_PASSWORD = 'ledger-demo-2026'
 
@@ -42,5 +43,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
     await seedOil(trx, { now })
     await seedTeardowns(trx)
     await seedBilling(trx, { supplierId: supplierId!, teams, now })
+    await seedAllocation(trx, { supplierId: supplierId!, teams, now })
   })
 }

@@ -126,6 +126,11 @@ export function catalogueOwner(actor: Actor): number | null {
   return actor.supplierId
 }
 
+/** The team a planning screen opens on: a team member's own; a supplier or an admin chooses one (null). */
+export function ownTeam(actor: Actor): number | null {
+  return isAdmin(actor) || isSupplier(actor) ? null : actor.organisationId
+}
+
 /** Organisations: admins all; the supplier itself and its teams; a team itself. */
 export function scopeOrganisations<Q extends Knex.QueryBuilder>(qb: Q, actor: Actor, cols = { id: 'id', supplier: 'supplier_id' }): Q {
   if (isAdmin(actor)) return qb

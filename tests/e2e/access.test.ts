@@ -43,6 +43,7 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/admin/task-runs': ['admin'],
   '/api/alerts': ALL,
   '/api/alerts/engines': ALL,
+  '/api/allocation': ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'],
   '/api/audit': SUPPLIER,
   '/api/billing/contracts': SUPPLIER,
   '/api/billing/statements': STATEMENT_READERS,
@@ -202,5 +203,30 @@ describe('releasing a part by concession', () => {
       expect(res.status, `${role} ${url}`).toBe(SUPPLIER.includes(role) ? 400 : 403)
     }
     expect(await db()('part_concessions').where('component_id', ids['parts.id']).first()).toBeUndefined()
+describe('engine allocation writes, by role', () => {
+  const PLANNERS: Role[] = ['admin', 'supplier_engineer', 'team_manager']
+  // Bodies that pass the guard and stop at validation or at a missing entry, so nothing is written.
+  const calls: [string, string, unknown, Role[]][] = [
+    ['POST', '/api/allocation/solve', { teamId: 'x' }, PLANNERS],
+    ['POST', '/api/allocation/accept', {}, PLANNERS],
+    ['PUT', '/api/allocation/entries', {}, PLANNERS],
+    ['PUT', '/api/allocation/workshop-week', {}, SUPPLIER],
+  ]
+  it('lists every allocation write route here', () => {
+    const mine = routes.filter((r) => r.path.startsWith('/api/allocation') && r.method !== 'GET').map((r) => `${r.method} ${r.path}`).sort()
+    expect(mine).toEqual(calls.map(([m, p]) => `${m} ${p}`).sort())
+  })
+  it.each(calls.map((c) => [`${c[0]} ${c[1]}`, c] as const))('%s: allowed roles reach validation (400), the others get 403', async (_n, [method, path, body, allowed]) => {
+    for (const role of ALL) {
+      const res = await clients[role]!.request(method, path, body)
+      expect(res.status, `${role} ${method} ${path}: ${JSON.stringify(res.body).slice(0, 200)}`).toBe(allowed.includes(role) ? 400 : 403)
+    }
+  })
+  it("another team's allocation answers 404", async () => {
+    const teamA = await db()('organisations').where('name', 'Marlowe Vane Racing').first()
+    for (const other of ['otherManager', 'otherRace'] as const) {
+      expect((await clients[other]!.get(`/api/allocation?teamId=${teamA.id}`)).status).toBe(404)
+    }
+    expect((await clients.otherManager!.post('/api/allocation/solve', { teamId: teamA.id })).status).toBe(404)
   })
 })
