@@ -203,6 +203,9 @@ describe('releasing a part by concession', () => {
       expect(res.status, `${role} ${url}`).toBe(SUPPLIER.includes(role) ? 400 : 403)
     }
     expect(await db()('part_concessions').where('component_id', ids['parts.id']).first()).toBeUndefined()
+  })
+})
+
 describe('engine allocation writes, by role', () => {
   const PLANNERS: Role[] = ['admin', 'supplier_engineer', 'team_manager']
   // Bodies that pass the guard and stop at validation or at a missing entry, so nothing is written.
