@@ -14,6 +14,7 @@ import * as oilNewReference from './20261203_03_c_oil_new_reference'
 import * as authSessions from './20261203_02_a_auth_sessions'
 import * as signInAddresses from './20261203_02_b_sign_in_addresses'
 import * as sessionFileScope from './20261203_02_c_session_file_scope'
+import * as findingFailureModes from './20261205_01_finding_failure_modes'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -32,6 +33,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203_02_a_auth_sessions': authSessions,
   '20261203_02_b_sign_in_addresses': signInAddresses,
   '20261203_02_c_session_file_scope': sessionFileScope,
+  '20261205_01_finding_failure_modes': findingFailureModes,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -6,6 +6,7 @@ import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
 import { seedFleet } from './fleet'
 import { seedOil } from './oil'
 import { seedTeardowns } from './teardowns'
+import { seedEvidence } from './evidence'
 
 export const DEMO_PASSWORD = 'ledger-demo-2026'
 
@@ -40,5 +41,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
     await seedFleet(trx, { supplierId: supplierId!, teams, now })
     await seedOil(trx, { now })
     await seedTeardowns(trx)
+    await seedEvidence(trx)
   })
 }
