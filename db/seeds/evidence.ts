@@ -46,7 +46,10 @@ export async function seedEvidence(trx: Knex.Transaction) {
   const moments = (hours: number) => momentsOfSegments(DYNO_CYCLE.map((c) => ({ rpm: c.rpm, seconds: c.share * hours * 3600 })))
   const histogram = (hours: number) => {
     const h: number[] = Array(Math.floor(9000 / BAND_WIDTH_RPM) + 1).fill(0)
-    for (const c of DYNO_CYCLE) h[Math.floor(c.rpm / BAND_WIDTH_RPM)] += c.share * hours * 3600
+    for (const c of DYNO_CYCLE) {
+      const band = Math.floor(c.rpm / BAND_WIDTH_RPM)
+      h[band] = (h[band] ?? 0) + c.share * hours * 3600
+    }
     return h
   }
 
