@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { SUPPLIER_ROLES } from '#shared/roles'
-import { EvidenceQuerySchema } from '#shared/schemas/evidence'
+import { EvidenceQuerySchema } from '#shared/schemas/teardown'
 import { partTypeEvidence } from '../../../services/evidence'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })

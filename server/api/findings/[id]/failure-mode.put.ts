@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { SUPPLIER_ROLES } from '#shared/roles'
-import { FailureModeSchema } from '#shared/schemas/evidence'
+import { FailureModeSchema } from '#shared/schemas/teardown'
 import { classifyFinding } from '../../../services/evidence'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
