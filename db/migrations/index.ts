@@ -25,6 +25,7 @@ import * as leaseContracts from './20261204_06_b_lease_contracts'
 import * as statements from './20261204_06_c_statements'
 import * as eventEntries from './20261205_02_a_event_entries'
 import * as workshopCapacity from './20261205_02_b_workshop_capacity'
+import * as findingFailureModes from './20261205_01_finding_failure_modes'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -54,6 +55,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_06_c_statements': statements,
   '20261205_02_a_event_entries': eventEntries,
   '20261205_02_b_workshop_capacity': workshopCapacity,
+  '20261205_01_finding_failure_modes': findingFailureModes,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -8,6 +8,7 @@ import { seedFleet } from './fleet'
 import { seedOil } from './oil'
 import { seedTeardowns } from './teardowns'
 import { seedAllocation } from './allocation'
+import { seedEvidence } from './evidence'
 
 export const DEMO_PASSWORD = 'ledger-demo-2026'
 
@@ -44,5 +45,6 @@ export async function seedDemo(knex: Knex, opts: { now?: Date } = {}) {
     await seedTeardowns(trx)
     await seedBilling(trx, { supplierId: supplierId!, teams, now })
     await seedAllocation(trx, { supplierId: supplierId!, teams, now })
+    await seedEvidence(trx)
   })
 }

@@ -3,6 +3,7 @@ import { z } from 'zod'
 import { line, multiline } from '../text'
 import { REMOVAL_STATES } from '../domain/part-state'
 import { CHARACTERISTIC_UNITS, DISPOSITIONS, TEARDOWN_CONDITIONS } from '../domain/teardown'
+import { EVIDENCE_MEASURES, FAILURE_MODES, NOT_A_FAILURE } from '../domain/evidence'
 
 export const TEARDOWN_REASONS = ['life due', 'over-rev inspection', 'oil alarm', 'failure', 'scheduled'] as const
 export type TeardownReason = (typeof TEARDOWN_REASONS)[number]
@@ -62,4 +63,14 @@ export const SignOffSchema = z.object({
 export const TeardownListQuery = z.object({
   state: z.enum(TEARDOWN_STATES).optional(),
   engineId: z.coerce.number().int().positive().optional(),
+})
+
+/** The supplier engineer's classification of a finding for the field evidence; null takes it back. */
+export const FailureModeSchema = z.object({
+  failureMode: z.enum([...FAILURE_MODES, NOT_A_FAILURE], { error: `must be one of ${[...FAILURE_MODES, NOT_A_FAILURE].join(', ')}, or null` }).nullable(),
+})
+
+/** Which life measure the field evidence of a part type is read in. */
+export const EvidenceQuerySchema = z.object({
+  measure: z.enum(EVIDENCE_MEASURES, { error: `must be one of ${EVIDENCE_MEASURES.join(', ')}` }).default('hours'),
 })

@@ -51,6 +51,7 @@ const READ_ROLES: Record<string, Role[]> = {
   '/api/billing/statements/[id]/csv': STATEMENT_READERS,
   '/api/board': ALL,
   '/api/component-types': ALL,
+  '/api/component-types/[id]/evidence': SUPPLIER,
   '/api/engine-types': ALL,
   '/api/engines/[id]': ALL,
   '/api/engines/[id]/charts': ALL,
