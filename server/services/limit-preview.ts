@@ -108,10 +108,11 @@ async function targetRow(trx: Knex.Transaction, actor: Actor, target: Target, lo
   return { supplierId: row.supplier_id as number, dto }
 }
 
-function checkChange(target: Target, dto: { warningLevel?: number; dueLevel?: number }) {
+function checkChange(target: Target, current: object) {
   if (target.kind !== 'component-type') return
-  const warning = target.change.warningLevel ?? dto.warningLevel!
-  const due = target.change.dueLevel ?? dto.dueLevel!
+  const dto = current as { warningLevel: number; dueLevel: number }
+  const warning = target.change.warningLevel ?? dto.warningLevel
+  const due = target.change.dueLevel ?? dto.dueLevel
   if (warning >= due) badRequest('Invalid input: dueLevel: must be above the warning level')
 }
 
