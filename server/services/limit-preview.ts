@@ -50,15 +50,19 @@ export function saveEngineTypeLimits(db: Knex, actor: Actor, id: number, input: 
 async function preview(db: Knex, actor: Actor, target: Target, now = new Date()): Promise<LimitPreviewDto> {
   return db.transaction(
     async (trx) => {
+      const t0 = performance.now()
       const current = await targetRow(trx, actor, target)
       checkChange(target, current.dto)
       const fingerprint = await fleetFingerprint(trx, now)
       const typeIds = new Set<number>(await trx('component_types').where('supplier_id', current.supplierId).pluck('id'))
-      const rows = await loadFleetRows(trx, now, { writeCache: false, extraPairs: extraPairsFor(target, current.supplierId, await supplierExponents(trx, current.supplierId)) }, (qb) =>
+      const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, current.supplierId, await supplierExponents(trx, current.supplierId)) }, (qb) =>
         qb.where('e.supplier_id', current.supplierId),
       )
+      const t1 = performance.now()
       const before = previewFleet(fleetLifeFromRows(rows, now, 0), current.supplierId, typeIds)
+      const t2 = performance.now()
       const after = previewFleet(fleetLifeFromRows(withChange(rows, target), now, 0), current.supplierId, typeIds)
+      const t3 = performance.now()
       const result = compareFleets(before, after)
       const summary = summarisePreview(result)
       const payload: TokenPayload = { kind: target.kind, id: target.id, change: canonical(target.change), fingerprint, summary }
@@ -73,6 +77,7 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
           events: new Set(before.engines.flatMap((e) => e.canFinish.map((c) => c.eventId))).size,
         },
         computedAt: now.toISOString(),
+        timingsMs: { read: Math.round(t1 - t0), before: Math.round(t2 - t1), after: Math.round(t3 - t2), compare: Math.round(performance.now() - t3) },
         previewToken: signPreviewToken(payload),
       }
     },

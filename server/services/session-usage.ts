@@ -11,7 +11,7 @@ import { momentsOf, toEngineSession } from './fleet-data'
 type Db = Knex | Knex.Transaction
 export type SessionRow = ReturnType<typeof toEngineSession>
 
-const COLUMNS = ['s.id', 's.engine_id', 's.event_id', 's.started_at', 's.running_seconds', 's.distance_km', 's.histogram', 's.over_revs', 's.band_width_rpm', 's.eq_cache']
+const COLUMNS = ['s.id', 's.engine_id', 's.event_id', 's.started_at', 's.running_seconds', 's.distance_km', 's.over_revs', 's.band_width_rpm', 's.eq_cache']
 const FILL_CHUNK = 500
 
 export interface SessionUsageOptions {
@@ -19,6 +19,8 @@ export interface SessionUsageOptions {
   extraPairs?: (engineTypeId: number, supplierId: number, referenceRpm: number) => { exponent: number; referenceRpm: number }[]
   /** false: fill what is missing in memory only (a preview writes nothing) */
   writeCache?: boolean
+  /** leave out the histograms of exact sessions (life reads their cached equivalent hours; charts need them) */
+  lifeOnly?: boolean
 }
 
 /** Sessions that count (not voided) matching `where` (on alias s), in time order, each exact session with every pair its engine type needs. */
@@ -27,6 +29,7 @@ export async function loadSessionUsage(db: Db, where: (qb: Knex.QueryBuilder) =>
     .join('engines as e', 'e.id', 's.engine_id')
     .join('engine_types as et', 'et.id', 'e.engine_type_id')
     .select(COLUMNS)
+    .select(opts.lifeOnly ? db.raw('IF(s.rpm_moments IS NULL, s.histogram, NULL) AS histogram') : 's.histogram')
     .select(db.raw('(s.rpm_moments IS NOT NULL) AS exact'), 'et.reference_rpm', 'e.supplier_id', 'e.engine_type_id')
     // A voided session counts nowhere: life, board, forecasts, part figures and the alerts' check all read here.
     .whereNull('s.voided_at')

@@ -14,6 +14,8 @@ export interface LimitPreviewDto extends LimitPreviewResult {
   /** engines and parts the computation covered (the supplier's fleet) */
   covered: { engines: number; parts: number; events: number }
   computedAt: string
+  /** where the server's time went, for the benchmark */
+  timingsMs: { read: number; before: number; after: number; compare: number }
   /** hand back with the change to save it; refused (409) when the data the preview saw has moved */
   previewToken: string
 }
