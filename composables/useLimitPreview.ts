@@ -44,7 +44,7 @@ export function useLimitPreview() {
         const message = apiMessage(e, 'The fleet data changed since this preview')
         try {
           preview.value = await $fetch<LimitPreviewDto>(`${base(p.target.kind, p.target.id)}/preview`, { method: 'POST', body: change.value })
-          refreshedNotice.value = `${message} The preview below is on the data as it is now.`
+          refreshedNotice.value = `${message.replace(/[.:;]?$/, '.')} The preview below is on the data as it is now.`
         } catch (again) {
           error.value = apiMessage(again, 'The preview could not be taken again')
         }

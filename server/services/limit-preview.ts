@@ -54,14 +54,19 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
       const current = await targetRow(trx, actor, target)
       checkChange(target, current.dto)
       const fingerprint = await fleetFingerprint(trx, now)
-      const typeIds = new Set<number>(await trx('component_types').where('supplier_id', current.supplierId).pluck('id'))
-      const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, current.supplierId, await supplierExponents(trx, current.supplierId)) }, (qb) =>
-        qb.where('e.supplier_id', current.supplierId),
-      )
+      const pairs = neededPairs(target)
+      let base = keptRows(fingerprint, current.supplierId, now, pairs)
       const t1 = performance.now()
-      const before = previewFleet(fleetLifeFromRows(rows, now, 0), current.supplierId, typeIds)
+      if (!base) {
+        const typeIds = new Set<number>(await trx('component_types').where('supplier_id', current.supplierId).pluck('id'))
+        const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, current.supplierId, await supplierExponents(trx, current.supplierId)) }, (qb) =>
+          qb.where('e.supplier_id', current.supplierId),
+        )
+        base = keepRows({ key: keyOf(fingerprint, current.supplierId, now), pairs, rows, typeIds, before: previewFleet(fleetLifeFromRows(rows, now, 0), current.supplierId, typeIds) })
+      }
+      const before = base.before
       const t2 = performance.now()
-      const after = previewFleet(fleetLifeFromRows(withChange(rows, target), now, 0), current.supplierId, typeIds)
+      const after = previewFleet(fleetLifeFromRows(withChange(base.rows, target), now, 0), current.supplierId, base.typeIds)
       const t3 = performance.now()
       const result = compareFleets(before, after)
       const summary = summarisePreview(result)
@@ -77,12 +82,45 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
           events: new Set(before.engines.flatMap((e) => e.canFinish.map((c) => c.eventId))).size,
         },
         computedAt: now.toISOString(),
-        timingsMs: { read: Math.round(t1 - t0), before: Math.round(t2 - t1), after: Math.round(t3 - t2), compare: Math.round(performance.now() - t3) },
+        timingsMs: { check: Math.round(t1 - t0), readAndBefore: Math.round(t2 - t1), reused: base.reused, after: Math.round(t3 - t2), compare: Math.round(performance.now() - t3) },
         previewToken: signPreviewToken(payload),
       }
     },
     { readOnly: true },
   )
+}
+
+// The rows and the unchanged fleet of the last preview, kept while the data they came from holds (same
+// fingerprint, same hour) so that a supplier engineer trying values one after another waits for one
+// read; dropped after a few idle minutes. Rows filled with a proposed exponent or reference speed are
+// kept with those pairs: a preview needing others reads afresh.
+interface Kept { key: string; pairs: string[]; rows: FleetRows; typeIds: Set<number>; before: PreviewFleet; reused?: boolean }
+const KEEP_MS = 10 * 60_000
+let kept: Kept | null = null
+let dropTimer: ReturnType<typeof setTimeout> | null = null
+
+function keyOf(fingerprint: string, supplierId: number, now: Date) {
+  return `${fingerprint}|${supplierId}|${Math.floor(now.getTime() / 3_600_000)}`
+}
+
+function keptRows(fingerprint: string, supplierId: number, now: Date, pairs: string[]): (Kept & { reused: boolean }) | null {
+  if (!kept || kept.key !== keyOf(fingerprint, supplierId, now) || !pairs.every((p) => kept!.pairs.includes(p))) return null
+  keepRows(kept)
+  return { ...kept, reused: true }
+}
+
+function keepRows(entry: Kept): Kept & { reused: boolean } {
+  kept = entry
+  if (dropTimer) clearTimeout(dropTimer)
+  dropTimer = setTimeout(() => (kept = null), KEEP_MS)
+  dropTimer.unref?.()
+  return { ...entry, reused: false }
+}
+
+/** The equivalent-hour pairs a change needs beyond those in use, named loosely (the exponent or the reference speed). */
+function neededPairs(target: Target): string[] {
+  if (target.kind === 'component-type') return target.change.damageExponent === undefined ? [] : [`p${target.change.damageExponent}`]
+  return target.change.referenceRpm === undefined ? [] : [`ref${target.id}@${target.change.referenceRpm}`]
 }
 
 async function save(db: Knex, actor: Actor, target: Target, token: string, now = new Date()): Promise<LimitSaveDto> {

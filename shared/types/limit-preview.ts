@@ -15,7 +15,7 @@ export interface LimitPreviewDto extends LimitPreviewResult {
   covered: { engines: number; parts: number; events: number }
   computedAt: string
   /** where the server's time went, for the benchmark */
-  timingsMs: { read: number; before: number; after: number; compare: number }
+  timingsMs: { check: number; readAndBefore: number; reused: boolean; after: number; compare: number }
   /** hand back with the change to save it; refused (409) when the data the preview saw has moved */
   previewToken: string
 }

@@ -1,7 +1,14 @@
+import { mkdirSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser } from 'playwright-core'
+import type { Browser, Page } from 'playwright-core'
 import { launch, screenshot, signedInPage, TABLET } from './browser'
 import { db, signIn, USERS } from '../e2e/helpers'
+
+/** The dialog as the user sees it: the viewport, not the page behind it. */
+async function viewShot(page: Page, name: string) {
+  mkdirSync('screenshots', { recursive: true })
+  await page.screenshot({ path: `screenshots/${name}.png` })
+}
 
 // The touring valve-spring type and the touring engine type's reference speed; both restored at the end.
 let browser: Browser
@@ -41,9 +48,12 @@ describe('the limit preview dialog in Chromium', () => {
     expect(await dialog.textContent()).toContain('never a substitute')
     // nothing saved yet
     expect(Number((await db()('component_types').where('id', vsp.id).first()).warning_level)).toBe(Number(vsp.warning_level))
-    await screenshot(page, 'limit-preview-dialog-laptop')
+    await screenshot(page, 'limit-preview-page-laptop')
+    await viewShot(page, 'limit-preview-dialog-laptop')
     await page.setViewportSize(TABLET)
-    await screenshot(page, 'limit-preview-dialog-tablet')
+    await viewShot(page, 'limit-preview-dialog-tablet')
+    await dialog.locator('[data-test=preview-status-changes]').scrollIntoViewIfNeeded()
+    await viewShot(page, 'limit-preview-dialog-tablet-lists')
 
     await dialog.locator('[data-test=preview-save]').click()
     await dialog.waitFor({ state: 'detached' })
@@ -70,9 +80,11 @@ describe('the limit preview dialog in Chromium', () => {
     await dialog.locator('[data-test=preview-save]').click()
     const notice = dialog.locator('[data-test=preview-refreshed]')
     await notice.waitFor()
-    expect(await notice.textContent()).toMatch(/changed since this preview.*The preview below is on the data as it is now\./)
+    expect(await notice.textContent()).toMatch(/changed since this preview.*save again\. The preview below is on the data as it is now\./)
     expect((await db()('engine_types').where('id', kt4.id).first()).reference_rpm).toBe(kt4.reference_rpm)
-    await screenshot(page, 'limit-preview-refreshed-laptop')
+    await viewShot(page, 'limit-preview-refreshed-laptop')
+    await page.setViewportSize(TABLET)
+    await viewShot(page, 'limit-preview-refreshed-tablet')
 
     await dialog.locator('[data-test=preview-save]').click()
     await dialog.waitFor({ state: 'detached' })
