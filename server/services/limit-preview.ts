@@ -58,15 +58,17 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
       let base = keptRows(fingerprint, current.supplierId, now, pairs)
       const t1 = performance.now()
       if (!base) {
+        // the supplier's own engines and part types: the catalogue owner's fleet is what its limits reach
         const typeIds = new Set<number>(await trx('component_types').where('supplier_id', current.supplierId).pluck('id'))
-        const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, current.supplierId, await supplierExponents(trx, current.supplierId)) }, (qb) =>
+        const engineIds = new Set<number>(await trx('engines').where('supplier_id', current.supplierId).pluck('id'))
+        const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, await supplierExponents(trx, current.supplierId)) }, (qb) =>
           qb.where('e.supplier_id', current.supplierId),
         )
-        base = keepRows({ key: keyOf(fingerprint, current.supplierId, now), pairs, rows, typeIds, before: previewFleet(fleetLifeFromRows(rows, now, 0), current.supplierId, typeIds) })
+        base = keepRows({ key: keyOf(fingerprint, current.supplierId, now), pairs, rows, engineIds, typeIds, before: previewFleet(fleetLifeFromRows(rows, now, 0), engineIds, typeIds) })
       }
       const before = base.before
       const t2 = performance.now()
-      const after = previewFleet(fleetLifeFromRows(withChange(base.rows, target), now, 0), current.supplierId, base.typeIds)
+      const after = previewFleet(fleetLifeFromRows(withChange(base.rows, target), now, 0), base.engineIds, base.typeIds)
       const t3 = performance.now()
       const result = compareFleets(before, after)
       const summary = summarisePreview(result)
@@ -94,7 +96,7 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
 // fingerprint, same hour) so that a supplier engineer trying values one after another waits for one
 // read; dropped after a few idle minutes. Rows filled with a proposed exponent or reference speed are
 // kept with those pairs: a preview needing others reads afresh.
-interface Kept { key: string; pairs: string[]; rows: FleetRows; typeIds: Set<number>; before: PreviewFleet; reused?: boolean }
+interface Kept { key: string; pairs: string[]; rows: FleetRows; engineIds: Set<number>; typeIds: Set<number>; before: PreviewFleet; reused?: boolean }
 const KEEP_MS = 10 * 60_000
 let kept: Kept | null = null
 let dropTimer: ReturnType<typeof setTimeout> | null = null
@@ -164,9 +166,9 @@ async function supplierExponents(db: Db, supplierId: number): Promise<number[]> 
 }
 
 /** The equivalent-hour pairs the proposed values need beyond those in use (evaluated from rpm moments, kept in memory only). */
-function extraPairsFor(target: Target, supplierId: number, exponents: number[]) {
-  return (engineTypeId: number, engineSupplierId: number, referenceRpm: number) => {
-    if (engineSupplierId !== supplierId) return []
+function extraPairsFor(target: Target, exponents: number[]) {
+  // the sessions read are the supplier's own (the read is narrowed to its engines)
+  return (engineTypeId: number, _supplierId: number, referenceRpm: number) => {
     if (target.kind === 'component-type') {
       const p = target.change.damageExponent
       return p === undefined ? [] : [{ exponent: p, referenceRpm }]
@@ -190,9 +192,9 @@ function withChange(rows: FleetRows, target: Target): FleetRows {
   }
 }
 
-function previewFleet(life: FleetLife, supplierId: number, typeIds: Set<number>): PreviewFleet {
+function previewFleet(life: FleetLife, engineIds: Set<number>, typeIds: Set<number>): PreviewFleet {
   return {
-    engines: life.engines.filter((e) => e.supplierId === supplierId),
+    engines: life.engines.filter((e) => engineIds.has(e.id)),
     looseParts: [...life.parts.values()].filter((p) => p.engineId === null && typeIds.has(p.componentTypeId)),
   }
 }
