@@ -13,6 +13,7 @@ import { announceLifeChanged } from '../utils/life-events'
 import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { getFile, newFileKey, putFile, removeFile } from '../utils/file-store'
+import { committedAfterLoss, isUnavailableAnswer } from '../utils/commit-check'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
@@ -173,6 +174,7 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
   const f = sessionFields(result)
   const fileKey = newFileKey('logger', 'csv.gz')
   let stored = false
+  const answer = async (q: Knex, id: number) => ({ session: toSessionDto(await sessionById(q, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length })
   try {
     return await db.transaction(async (trx) => {
       // A duplicate is looked for only among the sessions this user may see, and named only then.
@@ -185,8 +187,9 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
       }
       const input = { engineId: meta.engineId, eventId: meta.eventId, kind: meta.kind, startedAt: meta.startedAt, runningSeconds: f.runningSeconds, distanceKm: f.distanceKm, histogram: f.histogram, overRevs: f.overRevs }
       const { engine: locked, type: t } = await checkSession(trx, actor, input, { exactBands: false })
-      await putFile(fileKey, compressed)
+      // Marked before the write: a store that kept the object but lost the answer is cleaned up too.
       stored = true
+      await putFile(fileKey, compressed)
       const id = await insertSession(trx, actor, input, locked, t, {
         ...f.extras,
         source: 'logger',
@@ -195,9 +198,19 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
         fileSha256: result.sha256,
         details: { ...f.details, mapping: meta.mapping, laps: meta.laps, bytes: result.bytes },
       })
-      return { session: toSessionDto(await sessionById(trx, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length }
+      return answer(trx, id)
     })
   } catch (error) {
+    if (stored && isUnavailableAnswer(error)) {
+      // The database went away around the commit: the session either landed whole or not at all.
+      const landed = await committedAfterLoss(db, async (q) => Boolean(await q('sessions').where('file_key', fileKey).first('id')))
+      if (landed) {
+        const row = await db('sessions').where('file_key', fileKey).first('id')
+        return answer(db, row.id)
+      }
+      // Not known yet: the file stays, since a session may turn out to name it.
+      if (landed === null) throw error
+    }
     if (stored) await removeFile(fileKey).catch(() => {})
     // Two imports of one file into one scope at the same moment: the unique index keeps one.
     if ((error as { code?: string }).code === 'ER_DUP_ENTRY' && String((error as Error).message).includes('sessions_file_scope_sha256_unique')) {
