@@ -82,6 +82,8 @@ export interface App {
   base: string
   process: ChildProcess
   log: string[]
+  /** When the instance reported moving its writer to another node (ms since the epoch). */
+  switches: number[]
   stop(): Promise<void>
 }
 
@@ -89,6 +91,7 @@ export interface App {
 export async function startApp(port: number, extra: Record<string, string> = {}): Promise<App> {
   const base = `http://127.0.0.1:${port}`
   const log: string[] = []
+  const switches: number[] = []
   const child = spawn(process.execPath, ['.output/server/index.mjs'], {
     env: {
       ...env,
@@ -106,14 +109,19 @@ export async function startApp(port: number, extra: Record<string, string> = {})
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
-  child.stdout!.on('data', (d) => log.push(String(d)))
-  child.stderr!.on('data', (d) => log.push(String(d)))
+  const read = (d: Buffer) => {
+    log.push(String(d))
+    if (String(d).includes('writes now go to')) switches.push(Date.now())
+  }
+  child.stdout!.on('data', read)
+  child.stderr!.on('data', read)
   const ready = await waitFor(async () => (await fetch(`${base}/api/health`)).ok, 60_000)
   if (!ready) throw new Error(`instance on ${port} did not become ready:\n${log.join('')}`)
   return {
     base,
     process: child,
     log,
+    switches,
     async stop() {
       if (child.exitCode !== null) return
       const exited = new Promise((r) => child.once('exit', r))
