@@ -30,10 +30,11 @@ async function mixFor(base: string): Promise<autocannon.Request[]> {
 }
 
 function load(base: string, requests: autocannon.Request[], answers: Answer[]) {
-  const instance = autocannon({ url: base, connections: CONNECTIONS_EACH, duration: DURATION, requests })
-  instance.on('response', (_client: unknown, status: number, _bytes: number, ms: number) => answers.push({ at: Date.now(), status, ms }))
-  instance.on('reqError', () => answers.push({ at: Date.now(), status: 0, ms: 0 }))
-  return new Promise<autocannon.Result>((resolve, reject) => instance.on('done', resolve).on('error', reject))
+  return new Promise<autocannon.Result>((resolve, reject) => {
+    const instance = autocannon({ url: base, connections: CONNECTIONS_EACH, duration: DURATION, requests }, (err, result) => (err ? reject(err) : resolve(result)))
+    instance.on('response', (_client, status, _bytes, ms) => answers.push({ at: Date.now(), status, ms }))
+    instance.on('reqError', () => answers.push({ at: Date.now(), status: 0, ms: 0 }))
+  })
 }
 
 function phase(name: string, list: Answer[], seconds: number) {
