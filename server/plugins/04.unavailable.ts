@@ -5,6 +5,6 @@ import { RETRY_AFTER_SECONDS } from '../utils/db'
 export default defineNitroPlugin((nitroApp) => {
   nitroApp.hooks.hook('error', (error, { event }) => {
     const status = (error as { statusCode?: number }).statusCode
-    if (event && status === 503 && !event.node.res.headersSent) setResponseHeader(event, 'Retry-After', String(RETRY_AFTER_SECONDS))
+    if (event && status === 503 && !event.node.res.headersSent) setResponseHeader(event, 'Retry-After', RETRY_AFTER_SECONDS)
   })
 })
