@@ -20,27 +20,32 @@ export interface DatabaseWriter {
   stop(): void
 }
 
-const PROBE_TIMEOUT_MS = 2_000
+const PROBE_TIMEOUT_MS = 5_000
+// A probe that merely times out (a busy machine) is not a dead writer: only this many in a row move it.
+const TIMEOUTS_TO_SWITCH = 3
 
 function hostPort(url: string) {
   const u = new URL(url)
   return { host: u.hostname, port: Number(u.port || 3306) }
 }
 
-/** A node may take writes when it answers and, if it is a Galera node, is synced in the primary component. */
-export async function nodeTakesWrites(url: string): Promise<boolean> {
+/**
+ * A node may take writes when it answers and, if it is a Galera node, is synced in the primary
+ * component: 'yes'; refused or not synced: 'no'; no answer in time: 'timeout'.
+ */
+export async function nodeTakesWrites(url: string): Promise<'yes' | 'no' | 'timeout'> {
   let conn: mysql.Connection | undefined
-  const timeout = new Promise<false>((resolve) => setTimeout(() => resolve(false), PROBE_TIMEOUT_MS).unref())
+  const timeout = new Promise<'timeout'>((resolve) => setTimeout(() => resolve('timeout'), PROBE_TIMEOUT_MS).unref())
   const probe = (async () => {
     try {
       conn = await mysql.createConnection({ uri: url, connectTimeout: PROBE_TIMEOUT_MS })
       const [rows] = await conn.query("SHOW GLOBAL STATUS WHERE Variable_name IN ('wsrep_ready', 'wsrep_cluster_status', 'wsrep_local_state')")
       const status = new Map((rows as { Variable_name: string; Value: string }[]).map((r) => [r.Variable_name, r.Value]))
       // A server without wsrep (or with it off) reports nothing of this: it is its own writer.
-      if (!status.has('wsrep_cluster_status') || status.get('wsrep_cluster_status') === 'Disconnected') return true
-      return status.get('wsrep_ready') === 'ON' && status.get('wsrep_cluster_status') === 'Primary' && status.get('wsrep_local_state') === '4'
-    } catch {
-      return false
+      if (!status.has('wsrep_cluster_status') || status.get('wsrep_cluster_status') === 'Disconnected') return 'yes'
+      return status.get('wsrep_ready') === 'ON' && status.get('wsrep_cluster_status') === 'Primary' && status.get('wsrep_local_state') === '4' ? 'yes' : 'no'
+    } catch (error) {
+      return (error as { code?: string }).code === 'ETIMEDOUT' ? 'timeout' : 'no'
     } finally {
       conn?.destroy()
     }
@@ -52,12 +57,19 @@ export function createDatabaseWriter(urls: string[], probeMs: number, log: (m: s
   let index = 0
   let generation = 0
   let looking: Promise<void> | null = null
+  let timeouts = 0
 
   async function look() {
-    if (await nodeTakesWrites(urls[index]!)) return
+    const writer = await nodeTakesWrites(urls[index]!)
+    if (writer === 'yes') {
+      timeouts = 0
+      return
+    }
+    if (writer === 'timeout' && ++timeouts < TIMEOUTS_TO_SWITCH) return
     for (let i = 0; i < urls.length; i++) {
       if (i === index) continue
-      if (await nodeTakesWrites(urls[i]!)) {
+      if ((await nodeTakesWrites(urls[i]!)) === 'yes') {
+        timeouts = 0
         const from = hostPort(urls[index]!)
         index = i
         generation++
