@@ -79,7 +79,7 @@ cluster_address() {
 server_args() {
   local n=$1 d; d="$(dir "$n")"
   echo --no-defaults --user="$RUN_AS" --datadir="$d/data" --socket="$(sock "$n")" --port="$(port "$n")" \
-    --bind-address=127.0.0.1 --skip-name-resolve --pid-file="$(pidfile "$n")" --log-error="$d/run/mariadb.err" \
+    --bind-address=127.0.0.1 --skip-name-resolve --pid-file="$(pidfile "$n")" --log-error="$d/run/mariadb.err" --tmpdir="$d/tmp" \
     --character-set-server=utf8mb4 --collation-server=utf8mb4_unicode_ci \
     --innodb-buffer-pool-size=96M --max-connections=300 \
     --binlog-format=ROW --default-storage-engine=InnoDB --innodb-autoinc-lock-mode=2 \
@@ -92,9 +92,11 @@ server_args() {
 
 init_node() {
   local n=$1 d; d="$(dir "$n")"
-  mkdir -p "$d/data" "$d/run"
+  # Each node's temporary files in its own directory: a shared /tmp is cleaned by others on a busy machine.
+  mkdir -p "$d/data" "$d/run" "$d/tmp"
   if [[ ! -d "$d/data/mysql" ]]; then
-    mariadb-install-db --no-defaults --user="$RUN_AS" --datadir="$d/data" --auth-root-authentication-method=normal \
+    [[ "$RUN_AS" == "$(id -un)" ]] || chown "$RUN_AS:" "$d/tmp"
+    mariadb-install-db --no-defaults --user="$RUN_AS" --datadir="$d/data" --tmpdir="$d/tmp" --auth-root-authentication-method=normal \
       --skip-test-db >"$d/run/install.log" 2>&1 || { cat "$d/run/install.log" >&2; exit 1; }
   fi
   [[ "$RUN_AS" == "$(id -un)" ]] || chown -R "$RUN_AS:" "$d"
