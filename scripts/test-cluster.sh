@@ -35,7 +35,7 @@ rm -rf "$root/.data-test/maildev-cluster"
 start_maildev "$NUXT_SMTP_PORT" "$CL_CLUSTER_MAILDEV_WEB" "$root/.data-test/maildev-cluster"
 
 # `npm test` has just built the app on CI; a stand-alone run builds when the sources are newer.
-if [[ ! -f .output/server/index.mjs ]] || [[ -n "$(find server shared tasks db pages components composables nuxt.config.ts -newer .output/server/index.mjs -type f -print -quit)" ]]; then
+if [[ ! -f .output/server/index.mjs ]] || [[ -n "$(find server shared tasks db pages components composables nuxt.config.ts \( -name "*.ts" -o -name "*.vue" \) -newer .output/server/index.mjs -type f -print -quit)" ]]; then
   say "building the app for the cluster suite"
   mkdir -p "$root/.data-test"
   npx nuxt build > "$root/.data-test/build-cluster.log" 2>&1 || { tail -60 "$root/.data-test/build-cluster.log"; exit 1; }
