@@ -32,6 +32,25 @@ export interface DeliverResult {
   serverDown: boolean
 }
 
+/**
+ * A mail already handed to the mail server must be recorded as sent, or it would go out again once
+ * its claim runs out. When the database is away for a moment (a cluster node lost, the writer
+ * switching), the record is tried again for up to RECORD_SENT_WAIT_MS before the error is raised.
+ */
+const RECORD_SENT_WAIT_MS = 30_000
+async function recordSent(update: () => Promise<unknown>) {
+  const end = Date.now() + RECORD_SENT_WAIT_MS
+  for (;;) {
+    try {
+      await update()
+      return
+    } catch (error) {
+      if (Date.now() > end) throw error
+      await new Promise((r) => setTimeout(r, 500))
+    }
+  }
+}
+
 /** Minutes to wait after the n-th failed attempt (n >= 1). */
 export function backoffMinutes(attempts: number): number {
   return Math.min(2 ** Math.max(0, attempts - 1), MAX_BACKOFF_MINUTES)
@@ -70,10 +89,10 @@ export async function deliverOutbox(deps: DeliverDeps): Promise<DeliverResult> {
         .update({ claimed_by: token, claimed_until: new Date(at.getTime() + CLAIM_MS) })
       if (claimed !== 1) continue
       const row = await db('mail_outbox').where('id', id).first()
+      let mailed = false
       try {
         await deps.transport.sendMail({ from: deps.from, to: row.to_address, subject: row.subject, html: row.html, text: row.text })
-        await db('mail_outbox').where({ id, claimed_by: token }).update({ state: 'sent', sent_at: deps.now(), attempts: row.attempts + 1, last_error: null, claimed_by: null, claimed_until: null })
-        result.sent++
+        mailed = true
       } catch (e: any) {
         const attempts = row.attempts + 1
         const failed = attempts >= maxAttempts
@@ -95,6 +114,10 @@ export async function deliverOutbox(deps: DeliverDeps): Promise<DeliverResult> {
           result.serverDown = true
           break rounds
         }
+      }
+      if (mailed) {
+        await recordSent(() => db('mail_outbox').where({ id, claimed_by: token }).update({ state: 'sent', sent_at: deps.now(), attempts: row.attempts + 1, last_error: null, claimed_by: null, claimed_until: null }))
+        result.sent++
       }
     }
   }

@@ -15,6 +15,7 @@ import { audit } from '../utils/audit'
 import { badRequest, conflict, notFound } from '../utils/errors'
 import { fileSink, fileSource, newFileKey, removeFile } from '../utils/file-store'
 import { finishedUpload, removeUpload } from '../utils/uploads'
+import { committedAfterLoss, isUnavailableAnswer } from '../utils/commit-check'
 import { bumpLifeRevision, loadEngineTypes, toSessionDto } from './fleet-data'
 import { checkSession, insertSession, momentsColumn, sessionById } from './sessions'
 import { analyzeLoggerStream, LoggerImportError, type LoggerImportResult } from './logger-csv'
@@ -218,6 +219,7 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
     importErrorToHttp(error)
   }
   const f = sessionFields(result)
+  const answer = async (q: Knex | Knex.Transaction, id: number) => ({ session: toSessionDto(await sessionById(q, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length })
   try {
     return await db.transaction(async (trx) => {
       // A duplicate is looked for only among the sessions this user may see, and named only then.
@@ -238,9 +240,16 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
         fileSha256: result.sha256,
         details: { ...f.details, mapping: meta.mapping, laps: meta.laps, bytes: result.bytes },
       })
-      return { session: toSessionDto(await sessionById(trx, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length }
+      return answer(trx, id)
     })
   } catch (error) {
+    if (isUnavailableAnswer(error)) {
+      // The database went away around the commit: the session either landed whole or not at all.
+      const landed = await committedAfterLoss(db, async (q) => Boolean(await q('sessions').where('file_key', fileKey).first('id')))
+      if (landed) return answer(db, (await db('sessions').where('file_key', fileKey).first('id')).id)
+      // Not known yet: the file stays, since a session may turn out to name it.
+      if (landed === null) throw error
+    }
     // the file was stored before the transaction: nothing of this import may stay
     await removeFile(fileKey).catch(() => {})
     // Two imports of one file into one scope at the same moment: the unique index keeps one.

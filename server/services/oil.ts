@@ -17,6 +17,8 @@ import { canReadCatalogue, canSee, canWriteCatalogue, scopeCatalogue, scopeQuery
 import { badRequest, conflict, notFound, zodMessage } from '../utils/errors'
 import { iso, json } from '../utils/db'
 import { audit } from '../utils/audit'
+import { getFile, putFile, removeFile } from '../utils/file-store'
+import { committedAfterLoss, isUnavailableAnswer } from '../utils/commit-check'
 import { engineRowFor } from './engine-rows'
 import { bumpLifeRevision } from './fleet-data'
 import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from '../../db/oil-samples'
@@ -24,7 +26,6 @@ import { insertSamples, sampleUpdateRow, sampleValues, type SampleRow } from '..
 type Db = Knex | Knex.Transaction
 
 export const PDF_MAX_BYTES = 10 * 1024 * 1024
-const STORAGE = 'files'
 
 // ---------------------------------------------------------------- limits
 
@@ -274,7 +275,7 @@ export async function deleteOilSample(db: Knex, actor: Actor, id: number): Promi
     return row.attachment_key
   })
   // The report goes after the row: a failed removal leaves an orphan file, never a row without its file.
-  if (key) await useStorage(STORAGE).removeItem(key)
+  if (key) await removeFile(key)
 }
 
 // ------------------------------------------------------------ attachment
@@ -288,8 +289,7 @@ export async function attachOilReport(db: Knex, actor: Actor, id: number, file: 
   await sampleRowFor(db, actor, id)
   const key = `oil:${randomUUID()}.pdf`
   const name = (file.filename ?? 'report.pdf').replace(/[\\/\r\n"]+/g, '_').slice(0, 255) || 'report.pdf'
-  const storage = useStorage(STORAGE)
-  await storage.setItemRaw(key, file.data)
+  await putFile(key, file.data)
   let previousKey: string | null = null
   try {
     await db.transaction(async (trx) => {
@@ -299,17 +299,19 @@ export async function attachOilReport(db: Knex, actor: Actor, id: number, file: 
       await audit(trx, actor, { entity: 'oil_sample', entityId: id, action: 'attach', before: row.attachment_name, after: name })
     })
   } catch (e) {
-    await storage.removeItem(key)
-    throw e
+    // The database lost around the commit: the sample names the new report or it does not.
+    const landed = isUnavailableAnswer(e) ? await committedAfterLoss(db, async (q) => Boolean(await q('oil_samples').where({ id, attachment_key: key }).first('id'))) : false
+    if (landed === false) await removeFile(key)
+    if (!landed) throw e
   }
-  if (previousKey) await storage.removeItem(previousKey)
+  if (previousKey) await removeFile(previousKey)
   return oilSample(db, actor, id)
 }
 
 export async function oilReport(db: Db, actor: Actor, id: number): Promise<{ data: Buffer; name: string }> {
   const row = await sampleRowFor(db, actor, id)
   if (!row.attachment_key) notFound('Report')
-  const raw = await useStorage(STORAGE).getItemRaw(row.attachment_key)
+  const raw = await getFile(row.attachment_key)
   if (!raw) notFound('Report')
-  return { data: Buffer.isBuffer(raw) ? raw : Buffer.from(raw as ArrayBuffer), name: row.attachment_name ?? 'report.pdf' }
+  return { data: raw, name: row.attachment_name ?? 'report.pdf' }
 }

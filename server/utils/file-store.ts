@@ -16,17 +16,39 @@ export function fileStorage() {
 }
 
 export async function putFile(key: string, data: Buffer) {
-  await fileStorage().setItemRaw(key, data)
+  await storeCall(() => fileStorage().setItemRaw(key, data))
 }
 
 export async function getFile(key: string): Promise<Buffer | null> {
-  const v = await fileStorage().getItemRaw(key)
+  const v = await storeCall(() => fileStorage().getItemRaw(key))
   if (v === null || v === undefined) return null
   return Buffer.isBuffer(v) ? v : Buffer.from(v as ArrayBuffer)
 }
 
 export async function removeFile(key: string) {
-  await fileStorage().removeItem(key)
+  await storeCall(() => fileStorage().removeItem(key))
+}
+
+const STORE_DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'UND_ERR_SOCKET', 'UND_ERR_CONNECT_TIMEOUT'])
+
+/** True when an error means the file store (an S3-compatible service) cannot be reached or is failing. */
+export function isStoreUnavailable(error: unknown): boolean {
+  for (let e: any = error, depth = 0; e && depth < 4; e = e.cause, depth++) {
+    if (STORE_DOWN_CODES.has(e.code) || e.message === 'fetch failed' || /^\[unstorage\] \[s3\] .*: 5\d\d /.test(String(e.message))) return true
+  }
+  return false
+}
+
+// The store's own error never reaches the client: away or failing, the answer is a 503 saying so.
+async function storeCall<T>(call: () => Promise<T>): Promise<T> {
+  try {
+    return await call()
+  } catch (error) {
+    if (isStoreUnavailable(error)) {
+      throw createError({ statusCode: 503, statusMessage: 'Service Unavailable', message: 'The file store cannot be reached at the moment. Nothing was stored; try again in a few seconds.' })
+    }
+    throw error
+  }
 }
 
 /** The file's path when the mount is the local-disk driver (keys map to folders), else null. */
