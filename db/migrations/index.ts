@@ -23,6 +23,7 @@ import * as traceOverview from './20261204_04_trace-overview'
 import * as billingContacts from './20261204_06_a_billing_contacts'
 import * as leaseContracts from './20261204_06_b_lease_contracts'
 import * as statements from './20261204_06_c_statements'
+import * as readingVersions from './20261205_06_reading_versions'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -50,6 +51,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204_06_a_billing_contacts': billingContacts,
   '20261204_06_b_lease_contracts': leaseContracts,
   '20261204_06_c_statements': statements,
+  '20261205_06_reading_versions': readingVersions,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {
