@@ -5,7 +5,8 @@
 // On an engine of its own, so no other test file's teardown or oil figures move.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { LAPTOP, TABLET, launch, screenshot, signedInPage } from './browser'
+import { mkdirSync } from 'node:fs'
+import { LAPTOP, TABLET, launch, signedInPage } from './browser'
 import { type Client, USERS, db, signIn } from '../e2e/helpers'
 import { freshEngine, removeFreshEngines, type FreshEngine } from '../e2e/fresh-engine'
 
@@ -39,6 +40,14 @@ async function stored(position: string, key: string) {
   return sheet.body.parts.find((p: any) => p.componentId === part[position]).rows.find((r: any) => r.key === key).measurement as { value: number; version: number; at: string; measuredByName: string } | null
 }
 
+/** A screenshot of the viewport with the element near its top (a full page of the sheet is too tall to read). */
+async function shot(page: Page, name: string, selector: string) {
+  await page.locator(selector).first().evaluate((el) => el.scrollIntoView({ block: 'start' }))
+  await page.evaluate(() => window.scrollBy(0, -80))
+  mkdirSync('screenshots', { recursive: true })
+  await page.screenshot({ path: `screenshots/${name}.png` })
+}
+
 async function type(page: Page, position: string, key: string, value: string) {
   const field = page.locator(`[data-test="m-${position}-${key}"]`)
   await field.fill(value)
@@ -64,9 +73,9 @@ describe('teardown readings on a dropping link', () => {
     expect(await stored('rod-3', 'bolt_stretch')).toBeNull()
     expect(await stored('rod-1', 'big_end_clearance')).toBeNull()
     expect(await stored('rod-2', 'bolt_stretch')).toBeNull()
-    await screenshot(page, 'offline-teardown-not-sent-laptop')
+    await shot(page, 'offline-teardown-not-sent-laptop', '[data-test=outbox]')
     await page.setViewportSize(TABLET)
-    await screenshot(page, 'offline-teardown-not-sent-tablet')
+    await shot(page, 'offline-teardown-not-sent-tablet', '[data-test=outbox]')
 
     await page.context().setOffline(false)
     await expect.poll(() => page.locator('[data-test=outbox]').count(), { timeout: 15_000 }).toBe(0)
@@ -118,11 +127,9 @@ describe('teardown readings on a dropping link', () => {
     expect(text).toMatch(/Yours: 0\.05 mm, not stored/)
     // Not overwritten: the other user's reading stays stored.
     expect(await stored('rod-4', 'big_end_clearance')).toMatchObject({ value: 0.043, version: 2 })
-    await conflict.scrollIntoViewIfNeeded()
-    await screenshot(page, 'offline-teardown-conflict-laptop')
+    await shot(page, 'offline-teardown-conflict-laptop', '[data-test=outbox]')
     await page.setViewportSize(TABLET)
-    await conflict.scrollIntoViewIfNeeded()
-    await screenshot(page, 'offline-teardown-conflict-tablet')
+    await shot(page, 'offline-teardown-conflict-tablet', '[data-test="part-rod-4"]')
 
     // Having seen theirs, the mechanic sends the reading over it.
     await page.click('[data-test="conflict-rod-4-big_end_clearance"] [data-test=send-mine]')
@@ -147,7 +154,9 @@ describe('oil form on a dropping link', () => {
     await expect.poll(() => page.locator('[data-test=outbox-entry]').innerText()).toMatch(new RegExp(`not sent yet\\s*${engine.serial} · sample ${labNumber}`))
     expect(await page.locator('[data-test=kept-notice]').innerText()).toContain(labNumber)
     expect(await db()('oil_samples').where('sample_id', labNumber).first()).toBeUndefined()
-    await screenshot(page, 'offline-oil-not-sent-tablet')
+    await shot(page, 'offline-oil-not-sent-tablet', 'h1')
+    await page.setViewportSize(LAPTOP)
+    await shot(page, 'offline-oil-not-sent-laptop', 'h1')
 
     await page.context().setOffline(false)
     await expect.poll(() => page.locator('[data-test=outbox]').count(), { timeout: 15_000 }).toBe(0)
