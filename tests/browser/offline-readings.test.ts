@@ -70,6 +70,9 @@ describe('teardown readings on a dropping link', () => {
     }
     expect(await page.locator('[data-test=outbox-waiting]').innerText()).toMatch(/3 readings not sent yet/)
     expect(await page.inputValue('[data-test="m-rod-1-big_end_clearance"]')).toBe('0.045')
+    // No sign-off request while readings wait on this device.
+    expect(await page.isDisabled('[data-test=submit]')).toBe(true)
+    expect(await page.locator('[data-test=unsent-readings]').innerText()).toMatch(/3 reading\(s\) on this device are not stored yet/)
     expect(await stored('rod-3', 'bolt_stretch')).toBeNull()
     expect(await stored('rod-1', 'big_end_clearance')).toBeNull()
     expect(await stored('rod-2', 'bolt_stretch')).toBeNull()
@@ -91,6 +94,7 @@ describe('teardown readings on a dropping link', () => {
     const keys = audited.map((a: any) => (typeof a.after_value === 'string' ? JSON.parse(a.after_value) : a.after_value)).map((a: any) => `${a.serial}:${a.key}`)
     expect(keys).toEqual([`${engine.serial}-P4:bolt_stretch`, `${engine.serial}-P2:big_end_clearance`, `${engine.serial}-P3:bolt_stretch`])
     expect(await page.inputValue('[data-test="m-rod-2-bolt_stretch"]')).toBe('0.148')
+    expect(await page.isDisabled('[data-test=submit]')).toBe(false)
     await page.close()
   })
 
