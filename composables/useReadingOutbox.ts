@@ -28,6 +28,8 @@ export function useReadingOutbox(opts: OutboxOptions) {
   const problem = ref('')
   const refusals = ref<Record<string, { message: string; body: Record<string, unknown> }>>({})
   let running: Promise<void> | null = null
+  /** a reading was queued while a run was finishing (re-reading the page): run once more after it */
+  let again = false
   let timer: ReturnType<typeof setInterval> | undefined
 
   const waiting = computed(() => entries.value.filter((e) => e.state === 'waiting'))
@@ -53,7 +55,16 @@ export function useReadingOutbox(opts: OutboxOptions) {
   }
 
   function flush(): Promise<void> {
-    running ??= sendInOrder().finally(() => {
+    if (running) {
+      again = true
+      return running
+    }
+    running = (async () => {
+      do {
+        again = false
+        await sendInOrder()
+      } while (again && waiting.value.length > 0)
+    })().finally(() => {
       running = null
     })
     return running
