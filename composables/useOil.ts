@@ -1,4 +1,5 @@
 import type { OilEngineDto, OilEngineStatusDto, OilImportResult, OilLabMappingDto, OilLimitsDto, OilSampleDto } from '#shared/types/oil'
+import type { ReadingOutbox } from './useReadingOutbox'
 
 /** The oil status of every engine the actor may see. */
 export async function useOilList() {
@@ -55,4 +56,16 @@ export async function useOilLimits() {
   }
 
   return { types: limits.data, error: limits.error, refresh: limits.refresh, saveLimits }
+}
+
+/** Oil samples saved on the form while the link is down: kept in the browser and sent in the order saved. */
+export function useOilOutbox() {
+  const actor = useActorStore()
+  return useReadingOutbox({ scope: () => (actor.actor ? `u${actor.actor.id}:oil` : null) })
+}
+
+/** Queues a sample (a correction when it has an id; it carries the version it was read at as `baseVersion`). */
+export function queueOilSample(outbox: ReadingOutbox, sampleId: number | null, engineId: number, body: Record<string, unknown>, label: string) {
+  if (sampleId) return outbox.queue({ target: `sample:${sampleId}`, label, method: 'PUT', url: `/api/oil/samples/${sampleId}`, body })
+  return outbox.queue({ target: `new:${engineId}:${String(body.sampleId)}`, label, method: 'POST', url: '/api/oil/samples', body: { engineId, ...body } })
 }

@@ -20,13 +20,16 @@ export interface TeardownSwapBody { position: string; serial: string; reason: st
 
 /** One teardown: its sheet, findings, swaps and sign-off; every change reloads it. */
 export async function useTeardown(id: Ref<number>) {
+  // Readings go through the browser's outbox: kept when the link drops, sent in the order typed.
+  // Set up before the first await, while the component's lifecycle hooks can still be registered.
+  const actor = useActorStore()
+  const outbox = useReadingOutbox({ scope: () => (actor.actor ? `u${actor.actor.id}:teardown:${id.value}` : null), onSent: () => refresh() })
   const teardown = await useFetch<any>(() => `/api/teardowns/${id.value}`, { key: `teardown-${id.value}` })
   const base = () => `/api/teardowns/${id.value}`
   const refresh = () => teardown.refresh()
-
-  async function saveMeasurement(componentId: number, key: string, value: number) {
-    await $fetch(`${base()}/measurements`, { method: 'PUT', body: { componentId, key, value } })
-    await refresh()
+  /** Queues one reading; `baseVersion` is the stored reading's version the mechanic saw (0: none). */
+  async function saveMeasurement(componentId: number, key: string, value: number, baseVersion: number, label: string) {
+    await outbox.queue({ target: `${componentId}:${key}`, label, method: 'PUT', url: `${base()}/measurements`, body: { componentId, key, value, baseVersion } })
   }
   /** Changes the part's finding when it has one, records a new one otherwise. */
   async function saveFinding(componentId: number, findingId: number | null, body: TeardownFindingBody) {
@@ -50,7 +53,7 @@ export async function useTeardown(id: Ref<number>) {
     await refresh()
   }
 
-  return { td: teardown.data, error: teardown.error, refresh, saveMeasurement, saveFinding, uploadPhoto, swapPart, transition }
+  return { td: teardown.data, error: teardown.error, refresh, outbox, saveMeasurement, saveFinding, uploadPhoto, swapPart, transition }
 }
 
 /** One teardown as its printable report shows it (read once: the report does not change it). */

@@ -30,6 +30,8 @@ export interface SampleRow {
   attachment_name: string | null
   attachment_size: number | null
   created_at: Date | string | null
+  /** raised by every correction; a client names the one it last saw */
+  version?: number
 }
 
 export function sampleValues(row: SampleRow): OilSampleValues {

@@ -26,6 +26,7 @@ import * as statements from './20261204_06_c_statements'
 import * as eventEntries from './20261205_02_a_event_entries'
 import * as workshopCapacity from './20261205_02_b_workshop_capacity'
 import * as findingFailureModes from './20261205_01_finding_failure_modes'
+import * as readingVersions from './20261205_06_reading_versions'
 
 // Imported statically so the built server, the CLI and the tests run the same migrations.
 const migrations: Record<string, Knex.Migration> = {
@@ -56,6 +57,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261205_02_a_event_entries': eventEntries,
   '20261205_02_b_workshop_capacity': workshopCapacity,
   '20261205_01_finding_failure_modes': findingFailureModes,
+  '20261205_06_reading_versions': readingVersions,
 }
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -178,6 +178,7 @@ function sampleDto(row: SampleRow, assessed: ReturnType<typeof assessEngineHisto
     hthsCheck: assessed.assessment.hthsCheck,
     viscosityChange: assessed.assessment.viscosityChange,
     previousSampleId: assessed.previousSampleId,
+    version: Number(row.version ?? 1),
   }
 }
 
@@ -252,14 +253,20 @@ export async function createOilSample(db: Knex, actor: Actor, engineId: number, 
 }
 
 /** Corrects a recorded sample (a typing slip, a lab's re-issued report); the engine stays, the change is audited. */
-export async function updateOilSample(db: Knex, actor: Actor, id: number, lab: string | null, input: unknown, now = new Date()): Promise<OilSampleDto> {
+export async function updateOilSample(db: Knex, actor: Actor, id: number, lab: string | null, input: unknown, now = new Date(), seen: { baseVersion?: number } = {}): Promise<OilSampleDto> {
   await db.transaction(async (trx) => {
     // Oil status shows on the board, which is cached per life revision.
     await bumpLifeRevision(trx)
     const row = await sampleRowFor(trx, actor, id, { forUpdate: true })
+    const version = Number(row.version ?? 1)
+    if (seen.baseVersion !== undefined && seen.baseVersion !== version) {
+      // Changed by someone else since this client read it: refuse, and hand back what is stored now.
+      const current = await oilSample(trx, actor, id)
+      conflict(`baseVersion: sample ${row.sample_id} was changed by someone else since you opened it (version ${seen.baseVersion}, now ${version}); compare and correct it again`, { field: 'baseVersion', current })
+    }
     const engine = await trx('engines').where('id', row.engine_id).first('built_at')
     const values = await validSample(trx, engine, input, now, id)
-    await trx('oil_samples').where('id', id).update(sampleUpdateRow(values, lab))
+    await trx('oil_samples').where('id', id).update({ ...sampleUpdateRow(values, lab), version: version + 1 })
     await audit(trx, actor, { entity: 'oil_sample', entityId: id, action: 'update', before: { lab: row.lab, ...sampleValues(row) }, after: { lab, ...values } })
   })
   return oilSample(db, actor, id)

@@ -59,6 +59,8 @@ export const OilSampleCreateSchema = z.looseObject({
 /** Correction of a recorded sample: the lab, then the sample fields checked by oilSampleSchema on the server. */
 export const OilSampleUpdateSchema = z.looseObject({
   lab: line().trim().max(120, { error: 'lab must be at most 120 characters' }).nullable().optional(),
+  // The sample's version the client started from; another one stored answers 409 with the current sample.
+  baseVersion: z.number({ error: 'baseVersion must be a whole number' }).int({ error: 'baseVersion must be a whole number' }).min(1, { error: 'baseVersion must be at least 1' }).optional(),
 })
 
 export const OilCsvMappingSchema = z.record(line().max(200), z.enum([...OIL_CSV_FIELDS, 'ignore']))

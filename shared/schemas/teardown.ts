@@ -33,6 +33,8 @@ export const MeasurementSchema = z.object({
   value: z.number({ error: 'must be a number' }).finite('must be a finite number'),
   // Optional: the unit the value was read in, converted to the characteristic's unit (mm <-> um).
   unit: z.enum(CHARACTERISTIC_UNITS, { error: `must be one of ${CHARACTERISTIC_UNITS.join(', ')}` }).optional(),
+  // The reading's version the client last saw (0: none yet). Another one stored answers 409 with the current reading.
+  baseVersion: z.number({ error: 'must be a number' }).int('must be a whole number').min(0, 'must be 0 or more').optional(),
 })
 
 export const FindingSchema = z.object({

@@ -19,6 +19,8 @@ export interface OilSampleDto extends OilSampleValues {
   /** percent change from the engine type's new-oil reference */
   viscosityChange: { kv40Pct: number | null; kv100Pct: number | null }
   previousSampleId: string | null
+  /** raised by every correction: a correction names the version it started from */
+  version: number
 }
 
 export interface OilEngineStatusDto {

@@ -60,8 +60,19 @@ export async function recordMeasurement(trx: Knex.Transaction, actor: Actor, tea
     badRequest(`Invalid input: value: ${fmt(value)} ${c.unit} is outside the plausible range ${fmt(r.min)} to ${fmt(r.max)} ${c.unit} for ${c.label} of ${label} (${comp.serial}); check the reading`)
   }
   const at = new Date()
-  const before = await trx('teardown_measurements').where({ teardown_id: td.id, component_id: comp.id, characteristic_key: c.key }).first()
-  const row = { value, unit: c.unit, verdict, measured_by: actor.id, at }
+  const before = await trx('teardown_measurements as m')
+    .join('users as u', 'u.id', 'm.measured_by')
+    .where({ 'm.teardown_id': td.id, 'm.component_id': comp.id, 'm.characteristic_key': c.key })
+    .first('m.*', 'u.name as measured_by_name')
+  const version = before ? Number(before.version) : 0
+  if (input.baseVersion !== undefined && input.baseVersion !== version) {
+    // The same value sent again (a retry after a lost answer) is no conflict: nothing to write.
+    if (before && sameReading(num(before.value), value)) return measurementAnswer(before, comp.id)
+    const current = before ? measurementAnswer(before, comp.id) : null
+    const was = current ? `${fmt(current.value)} ${current.unit}, by ${current.measuredByName}` : 'no reading'
+    conflict(`value: ${c.label} of ${label} (${comp.serial}) was changed by someone else since you last saw it (now ${was}); keep theirs or send yours again`, { field: 'value', current })
+  }
+  const row = { value, unit: c.unit, verdict, measured_by: actor.id, at, version: version + 1 }
   let id: number
   if (before) {
     await trx('teardown_measurements').where('id', before.id).update(row)
@@ -76,7 +87,14 @@ export async function recordMeasurement(trx: Knex.Transaction, actor: Actor, tea
     before: before ? { value: num(before.value), verdict: before.verdict } : undefined,
     after: { teardown: td.id, serial: comp.serial, key: c.key, value, unit: c.unit, verdict },
   })
-  return { id, componentId: comp.id, key: c.key, value, unit: c.unit, verdict, measuredBy: actor.id, measuredByName: actor.name, at: at.toISOString() }
+  return { id, componentId: comp.id, key: c.key, value, unit: c.unit, verdict, measuredBy: actor.id, measuredByName: actor.name, at: at.toISOString(), version: version + 1 }
+}
+
+// Readings are stored to 6 decimals (DECIMAL(14,6)); a unit conversion may leave float noise below that.
+const sameReading = (a: number, b: number) => Math.round(a * 1e6) === Math.round(b * 1e6)
+
+function measurementAnswer(m: any, componentId: number) {
+  return { id: m.id as number, componentId, key: m.characteristic_key as string, value: num(m.value), unit: m.unit as string, verdict: m.verdict as string, measuredBy: m.measured_by as number, measuredByName: m.measured_by_name as string, at: iso(m.at)!, version: Number(m.version) }
 }
 
 
@@ -167,7 +185,7 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
         return {
           ...c,
           plausible: plausibleRange(c),
-          measurement: m ? { value: num(m.value), unit: m.unit, verdict: m.verdict, measuredBy: m.measured_by, measuredByName: m.measured_by_name, at: iso(m.at) } : null,
+          measurement: m ? { value: num(m.value), unit: m.unit, verdict: m.verdict, measuredBy: m.measured_by, measuredByName: m.measured_by_name, at: iso(m.at), version: Number(m.version) } : null,
         }
       }),
     }
