@@ -8,13 +8,26 @@ export default defineNuxtConfig({
   telemetry: false,
   devtools: { enabled: false },
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],
+  // The Latin subset of the three weights the styles use (font-display: swap in these files);
+  // the hook below preloads their woff2 files. Other scripts fall back to system-ui per glyph.
   css: [
-    '@fontsource/barlow/400.css',
-    '@fontsource/barlow/500.css',
-    '@fontsource/barlow/600.css',
-    '@fontsource/barlow/700.css',
+    '@fontsource/barlow/latin-400.css',
+    '@fontsource/barlow/latin-500.css',
+    '@fontsource/barlow/latin-600.css',
     '~/assets/css/main.css',
   ],
+  hooks: {
+    'build:manifest'(manifest) {
+      for (const chunk of Object.values(manifest)) {
+        if (chunk.resourceType === 'font') chunk.preload = /latin-\d00-normal\.[\w-]+\.woff2$/.test(chunk.file ?? '')
+      }
+    },
+  },
+  // Static files are also written gzip- and brotli-compressed, and sent so to browsers that accept it.
+  nitro: { compressPublicAssets: { gzip: true, brotli: true } },
+  // A link fetches its page's code when pointed at or focused, not as soon as it scrolls into view:
+  // on a slow link the board's many links would otherwise compete with the page's own data.
+  experimental: { defaults: { nuxtLink: { prefetchOn: { visibility: false, interaction: true } } } },
   tailwindcss: { cssPath: false, configPath: 'tailwind.config.ts', viewer: false },
   app: {
     head: {

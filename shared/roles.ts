@@ -25,6 +25,10 @@ export const SESSION_VOIDERS = ['admin', 'supplier_engineer', 'race_engineer'] a
 export const ALLOCATION_READERS = ['admin', 'supplier_engineer', 'team_manager', 'race_engineer'] as const satisfies readonly Role[]
 export const ALLOCATION_PLANNERS = ['admin', 'supplier_engineer', 'team_manager'] as const satisfies readonly Role[]
 export const USER_MANAGERS = ['admin', 'team_manager'] as const satisfies readonly Role[]
+/** Who keeps contracts and statements: the supplier side. */
+export const BILLING_WRITERS = ['admin', 'supplier_engineer'] as const satisfies readonly Role[]
+/** Who reads statements: the supplier side and a team's manager (their own team's only). */
+export const STATEMENT_READERS = ['admin', 'supplier_engineer', 'team_manager'] as const satisfies readonly Role[]
 
 export function roleFitsOrganisation(role: Role, kind: OrganisationKind): boolean {
   return ROLES_BY_KIND[kind].includes(role)

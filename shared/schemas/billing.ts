@@ -6,10 +6,8 @@ import { FEE_BASES, USAGE_UNITS } from '../domain/billing/statement'
 import { DISPOSITIONS } from '../domain/teardown'
 import { TEARDOWN_REASONS } from './teardown'
 
-/** Who keeps contracts and statements: the supplier side. */
-export const BILLING_WRITERS = ['admin', 'supplier_engineer'] as const
-/** Who reads statements: the supplier side and a team's manager (their own team's only). */
-export const STATEMENT_READERS = ['admin', 'supplier_engineer', 'team_manager'] as const
+// the role lists live with the others (no zod), so a page's meta can name them without pulling in the schemas
+export { BILLING_WRITERS, STATEMENT_READERS } from '../roles'
 
 export const PAYMENT_STATUSES = ['queued', 'open', 'paid', 'overdue', 'void'] as const
 export type PaymentStatus = (typeof PAYMENT_STATUSES)[number]
