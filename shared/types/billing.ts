@@ -1,26 +1,12 @@
-import type { FeeBasis, LineEvidence, LineKind, UsageUnit } from '../domain/billing/statement'
+import type { LeaseTerms, LineEvidence, LineKind } from '../domain/billing/statement'
 import type { PaymentStatus, StatementState } from '../schemas/billing'
 
-export interface ContractDto {
-  id: number
+/** A lease contract as the billing page lists it: its terms, with the names beside the ids. */
+export interface ContractDto extends LeaseTerms {
   teamId: number
   teamName: string
-  engineId: number | null
   engineSerial: string | null
-  engineTypeId: number | null
   engineTypeCode: string | null
-  validFrom: string
-  validTo: string
-  currency: string
-  feeBasis: FeeBasis
-  feeMinor: number
-  allowanceUnit: UsageUnit
-  allowance: number
-  overageRateMinor: number
-  rebuildCharges: Record<string, number>
-  overRevCharges: Record<string, number>
-  damageCharges: Record<string, number>
-  taxRateBp: number
   note: string | null
 }
 

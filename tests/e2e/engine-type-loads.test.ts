@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest'
 import { makeEngineType, makeOverRevBands } from '../../db/fixtures'
-import { db, signIn, USERS, type Client } from './helpers'
+import { count, db, signIn, USERS, type Client } from './helpers'
 
 // The reciprocating mass of an engine type and the inertia forces the API derives from it.
 // A test engine type of its own keeps the demo types untouched for the other files.
@@ -12,7 +12,6 @@ let typeId: number
 function expectRel(actual: number, expected: number, rel: number) {
   expect(Math.abs(actual - expected)).toBeLessThanOrEqual(Math.abs(expected) * rel)
 }
-const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
 const code = `TST-LOADS-${Date.now().toString(36).toUpperCase()}`
 
 beforeAll(async () => {

@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest'
 import { makeEngineType, makeOverRevBands } from '../../db/fixtures'
-import { db, signIn, USERS, type Client } from './helpers'
+import { count, db, signIn, USERS, type Client } from './helpers'
 
 let supplier: Client
 let managerA: Client
@@ -9,7 +9,6 @@ let raceA: Client
 
 const engineId = async (serial: string) => (await db()('engines').where({ serial }).first()).id as number
 const installationAt = (engine: number, position: string) => db()('installations').where({ engine_id: engine, position }).whereNull('to_at').first()
-const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
 
 beforeAll(async () => {
   supplier = await signIn(USERS.supplierEngineer)

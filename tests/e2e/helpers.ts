@@ -1,3 +1,5 @@
+import { existsSync, readdirSync, statSync } from 'node:fs'
+import { join } from 'node:path'
 import knexFactory, { type Knex } from 'knex'
 import { afterAll } from 'vitest'
 import { knexConfig } from '../../db/knexfile'
@@ -17,6 +19,25 @@ export function db(): Knex {
     })
   }
   return knex
+}
+
+/** Rows in a table now. */
+export const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
+
+/** Files under the test server's storage folder: an import that fails must leave none behind. */
+export function storedFiles(): number {
+  const dir = process.env.NUXT_STORAGE_DIR
+  if (!dir || !existsSync(dir)) return 0
+  let n = 0
+  const walk = (d: string) => {
+    for (const f of readdirSync(d)) {
+      const p = join(d, f)
+      if (statSync(p).isDirectory()) walk(p)
+      else n++
+    }
+  }
+  walk(dir)
+  return n
 }
 
 export interface ApiAnswer<T = any> {

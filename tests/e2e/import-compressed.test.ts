@@ -1,8 +1,6 @@
-import { existsSync, readdirSync, statSync } from 'node:fs'
-import { join } from 'node:path'
 import { gzipSync } from 'node:zlib'
 import { beforeAll, describe, expect, it } from 'vitest'
-import { BASE, db, signIn, type Client } from './helpers'
+import { BASE, count, db, signIn, storedFiles, type Client } from './helpers'
 
 // Compressed uploads and export layouts through the server. Synthetic traces with known answers.
 const MAPPING = { columns: { time: 'Time', rpm: 'Engine RPM', speed: 'Speed' }, units: { time: 'seconds', speed: 'kmh', temperature: 'C', pressure: 'bar' }, decimal: '.' }
@@ -13,22 +11,6 @@ function trace(seconds: number, rpm: number, salt: number) {
   for (let i = 0; i < seconds * 100; i++) lines.push(`${(i / 100).toFixed(2)},${i === 0 ? rpm + salt : rpm},144`)
   return `${lines.join('\n')}\n`
 }
-
-function storedFiles(): number {
-  const dir = process.env.NUXT_STORAGE_DIR
-  if (!dir || !existsSync(dir)) return 0
-  let n = 0
-  const walk = (d: string) => {
-    for (const f of readdirSync(d)) {
-      const p = join(d, f)
-      if (statSync(p).isDirectory()) walk(p)
-      else n++
-    }
-  }
-  walk(dir)
-  return n
-}
-const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
 
 let race: Client
 let engineId: number

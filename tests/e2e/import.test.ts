@@ -1,8 +1,6 @@
-import { existsSync, readdirSync, statSync } from 'node:fs'
-import { join } from 'node:path'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { momentsRelativeErrorBound } from '../../shared/domain/rpm-moments'
-import { BASE, db, signIn, USERS, type Client } from './helpers'
+import { BASE, count, db, signIn, storedFiles, USERS, type Client } from './helpers'
 
 // Synthetic traces with known answers (no logger data set is published: cases are built here).
 const HEADER = 'time_s,engine_rpm,speed_kmh,oil_press_bar'
@@ -17,23 +15,6 @@ function trace(blocks: { rpm: number; seconds: number }[], extra = '') {
   }
   return `${lines.join('\n')}\n${extra}`
 }
-
-function storedFiles(): number {
-  const dir = process.env.NUXT_STORAGE_DIR
-  if (!dir || !existsSync(dir)) return 0
-  let n = 0
-  const walk = (d: string) => {
-    for (const f of readdirSync(d)) {
-      const p = join(d, f)
-      if (statSync(p).isDirectory()) walk(p)
-      else n++
-    }
-  }
-  walk(dir)
-  return n
-}
-
-const count = async (table: string) => Number((await db()(table).count({ n: '*' }).first())!.n)
 
 let race: Client
 let engineId: number
