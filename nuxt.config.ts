@@ -24,7 +24,11 @@ export default defineNuxtConfig({
     },
   },
   // Static files are also written gzip- and brotli-compressed, and sent so to browsers that accept it.
-  nitro: { compressPublicAssets: { gzip: true, brotli: true } },
+  nitro: {
+    compressPublicAssets: { gzip: true, brotli: true },
+    // The allocation solver (HiGHS) loads its WebAssembly file by path beside the traced package.
+    externals: { traceInclude: ['node_modules/highs/build/highs.wasm'] },
+  },
   // A link fetches its page's code when pointed at or focused, not as soon as it scrolls into view:
   // on a slow link the board's many links would otherwise compete with the page's own data.
   experimental: { defaults: { nuxtLink: { prefetchOn: { visibility: false, interaction: true } } } },
@@ -77,6 +81,4 @@ export default defineNuxtConfig({
   // nuxt-auth-utils: the app reads who is signed in from /api/me; no session fetch per page render.
   auth: { loadStrategy: 'none' },
   typescript: { strict: true },
-  // The allocation solver (HiGHS) loads its WebAssembly file by path beside the traced package.
-  nitro: { externals: { traceInclude: ['node_modules/highs/build/highs.wasm'] } },
 })

@@ -1,3 +1,4 @@
+import { join } from 'node:path'
 import { gzipSync } from 'node:zlib'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { BASE, count, db, signIn, storedFiles, type Client } from './helpers'
