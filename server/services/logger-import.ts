@@ -220,6 +220,9 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
   }
   const f = sessionFields(result)
   const answer = async (q: Knex | Knex.Transaction, id: number) => ({ session: toSessionDto(await sessionById(q, id)), rows: result.rows, skippedRows: result.skippedRows, warnings: result.warnings, gaps: result.summary.gaps.length })
+  // Set once the transaction's work is done and its COMMIT goes out: only a connection lost after
+  // that leaves the outcome unknown. Lost before, nothing was committed and the file goes.
+  let committing = false
   try {
     return await db.transaction(async (trx) => {
       // A duplicate is looked for only among the sessions this user may see, and named only then.
@@ -240,10 +243,12 @@ async function storeLoggerFile(db: Knex, actor: Actor, meta: ImportMeta, body: R
         fileSha256: result.sha256,
         details: { ...f.details, mapping: meta.mapping, laps: meta.laps, bytes: result.bytes },
       })
-      return answer(trx, id)
+      const stored = await answer(trx, id)
+      committing = true
+      return stored
     })
   } catch (error) {
-    if (isUnavailableAnswer(error)) {
+    if (committing && isUnavailableAnswer(error)) {
       // The database went away around the commit: the session either landed whole or not at all.
       const landed = await committedAfterLoss(db, async (q) => Boolean(await q('sessions').where('file_key', fileKey).first('id')))
       if (landed) return answer(db, (await db('sessions').where('file_key', fileKey).first('id')).id)
