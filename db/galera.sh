@@ -35,6 +35,25 @@ NODES=(1 2 3)
 # started by the donor and joiner, would otherwise drop to "nobody" and fail to write the data files.
 if [[ $EUID -eq 0 ]] && id mysql >/dev/null 2>&1; then RUN_AS=mysql; else RUN_AS="$(id -un)"; fi
 export PATH="$PATH:/usr/sbin"
+# A server run as another user (mysql) must reach its data directory through every parent folder.
+# A checkout inside a private folder (mode 0700, as a temporary clone is) does not allow that: the
+# nodes then live under /tmp, reached through a link at the configured place, which is started
+# afresh whenever that link has been removed (as the cluster suite does before each run).
+if [[ "$RUN_AS" != "$(id -un)" ]]; then
+  probe="$BASE_DIR"
+  while [[ ! -e "$probe" && "$probe" != / ]]; do probe="$(dirname "$probe")"; done
+  if ! runuser -u "$RUN_AS" -- test -x "$probe" 2>/dev/null; then
+    real="/tmp/crankledger-galera-$(printf %s "$BASE_DIR" | sha1sum | cut -c1-12)"
+    if [[ ! -L "$BASE_DIR" ]]; then
+      rm -rf "$real" "$BASE_DIR"
+      mkdir -p "$(dirname "$BASE_DIR")" "$real"
+      ln -s "$real" "$BASE_DIR"
+    fi
+    mkdir -p "$real"
+    chmod 755 "$real"
+    BASE_DIR="$real"
+  fi
+fi
 
 log() { echo "[galera] $*" >&2; }
 

@@ -132,7 +132,10 @@ export async function startApp(port: number, extra: Record<string, string> = {})
 }
 
 export async function signIn(base: string, email: string): Promise<string> {
-  const res = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
+  const ask = () => fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
+  // A pooled keep-alive connection the instance closed meanwhile fails before any answer: that is
+  // the transport, not the app, so the sign-in is asked once more on a new connection.
+  const res = await ask().catch(() => ask())
   if (res.status !== 200) throw new Error(`sign-in of ${email} answered ${res.status}`)
   return res.headers.getSetCookie().find((c) => c.startsWith('nuxt-session='))!.split(';')[0]!
 }
