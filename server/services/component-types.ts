@@ -44,7 +44,7 @@ export async function createComponentType(db: Knex, actor: Actor, input: z.infer
 }
 
 /** A limit change moves the life of every part of this type at once: life is derived at read time. */
-export async function updateComponentType(db: Knex, actor: Actor, id: number, input: z.infer<typeof ComponentTypeUpdateSchema>): Promise<ComponentTypeDto> {
+export async function updateComponentType(db: Knex, actor: Actor, id: number, input: z.infer<typeof ComponentTypeUpdateSchema>, auditNote?: Record<string, unknown>): Promise<ComponentTypeDto> {
   return db.transaction(async (trx) => {
     const before = await trx('component_types').where('id', id).forUpdate().first()
     if (!before || !canWriteCatalogue(actor, before.supplier_id)) notFound('Component type')
@@ -58,7 +58,7 @@ export async function updateComponentType(db: Knex, actor: Actor, id: number, in
     }
     await trx('component_types').where('id', id).update(patch)
     const after = await trx('component_types').where('id', id).first()
-    await audit(trx, actor, { entity: 'component_type', entityId: id, action: 'update-limits', before: toComponentType(before), after: toComponentType(after) })
+    await audit(trx, actor, { entity: 'component_type', entityId: id, action: 'update-limits', before: toComponentType(before), after: { ...toComponentType(after), ...auditNote } })
     await bumpLifeRevision(trx)
     return toComponentType(after)
   })

@@ -57,7 +57,7 @@ export async function createEngineType(db: Knex, actor: Actor, input: z.infer<ty
 }
 
 /** A change of bands re-reads the stored over-revs; any change moves life, which is derived at read time. */
-export async function updateEngineType(db: Knex, actor: Actor, id: number, input: z.infer<typeof EngineTypeUpdateSchema>): Promise<EngineTypeDto> {
+export async function updateEngineType(db: Knex, actor: Actor, id: number, input: z.infer<typeof EngineTypeUpdateSchema>, auditNote?: Record<string, unknown>): Promise<EngineTypeDto> {
   return db.transaction(async (trx) => {
     const before = await trx('engine_types').where('id', id).forUpdate().first()
     if (!before || !canWriteCatalogue(actor, before.supplier_id)) notFound('Engine type')
@@ -70,7 +70,7 @@ export async function updateEngineType(db: Knex, actor: Actor, id: number, input
     if (referenceRpm <= 0) badRequest('Invalid input: referenceRpm: must be above zero')
     await trx('engine_types').where('id', id).update(patch)
     const after = await trx('engine_types').where('id', id).first()
-    await audit(trx, actor, { entity: 'engine_type', entityId: id, action: 'update', before: toEngineType(before), after: toEngineType(after) })
+    await audit(trx, actor, { entity: 'engine_type', entityId: id, action: 'update', before: toEngineType(before), after: { ...toEngineType(after), ...auditNote } })
     if (input.overRevBands) await reclassifyOverRevs(trx, actor, id, input.overRevBands)
     await bumpLifeRevision(trx)
     const positions = await trx('engine_type_positions').where('engine_type_id', id)

@@ -45,7 +45,12 @@ type SessionRow = EngineSession & { bandWidthRpm: number; eventId: number | null
  */
 export async function computeFleetLife(db: Knex, now: Date, revision?: number): Promise<FleetLife> {
   const rev = revision ?? (await lifeRevision(db))
-  const fleet = indexFleet(await loadFleetRows(db, now))
+  return fleetLifeFromRows(await loadFleetRows(db, now), now, rev)
+}
+
+/** Steps 2 to 4 on rows already read: the limit preview runs them twice on one read, with and without the change. */
+export function fleetLifeFromRows(rows: FleetRows, now: Date, rev: number): FleetLife {
+  const fleet = indexFleet(rows)
   const usageOf = partUsageCalculator(fleet)
   const parts = new Map<number, PartLifeDto & { engineId: number | null }>()
   const engines = fleet.engineRows.map((e) => engineLife(fleet, usageOf, e, parts))
@@ -54,15 +59,20 @@ export async function computeFleetLife(db: Knex, now: Date, revision?: number): 
   return { revision: rev, computedAt: now.toISOString(), engines, parts }
 }
 
-/** Step 1: everything life is derived from, read in one round of queries whatever the fleet size. */
-async function loadFleetRows(db: Knex, now: Date) {
+export type FleetRows = Awaited<ReturnType<typeof loadFleetRows>>
+
+/**
+ * Step 1: everything life is derived from, read in one round of queries whatever the fleet size.
+ * `sessions` narrows or extends the session read (the preview asks for extra equivalent-hour pairs, written nowhere).
+ */
+export async function loadFleetRows(db: Knex | Knex.Transaction, now: Date, sessions?: Parameters<typeof loadSessionUsage>[2], whereSessions?: Parameters<typeof loadSessionUsage>[1]) {
   const [engineTypes, componentTypes, engineRows, installationRows, componentRows, sessionRows, eventRows, planRows, teamRows, oil] = await Promise.all([
     loadEngineTypes(db),
     loadComponentTypes(db),
     db('engines').select('*'),
     db('installations').select('id', 'component_id', 'engine_id', 'position', 'from_at', 'to_at'),
     db('components').select('id', 'serial', 'component_type_id', 'status', 'inspection_cleared_at', 'serial_limits'),
-    loadSessionUsage(db),
+    loadSessionUsage(db, whereSessions, sessions),
     db('events').where('ends_at', '>', now).orderBy('starts_at'),
     db('event_plans').select('*'),
     db('organisations').where('kind', 'team').select('id', 'name'),
@@ -83,7 +93,7 @@ function groupBy<T, K>(items: Iterable<T>, keyOf: (item: T) => K): Map<K, T[]> {
 }
 
 /** Step 2: the rows looked up by what each step asks for. */
-function indexFleet(rows: Awaited<ReturnType<typeof loadFleetRows>>) {
+function indexFleet(rows: FleetRows) {
   const installations = rows.installationRows.map(toInstallation)
   return {
     ...rows,

@@ -234,3 +234,16 @@ describe('engine allocation writes, by role', () => {
     expect((await clients.otherManager!.post('/api/allocation/solve', { teamId: teamA.id })).status).toBe(404)
   })
 })
+
+describe('previewing and saving a limit change', () => {
+  const routes = ['/api/component-types/[id]/preview', '/api/component-types/[id]/limits', '/api/engine-types/[id]/preview', '/api/engine-types/[id]/limits']
+  it.each(routes)('POST %s: the supplier engineer and admin reach validation (400), every other role 403, nothing written', async (path) => {
+    const before = await db()('audit_log').count({ n: '*' }).first()
+    for (const role of ALL) {
+      const res = await clients[role]!.post(concrete(path), {})
+      expect(res.status, `${role} ${path}`).toBe(SUPPLIER.includes(role) ? 400 : 403)
+    }
+    const after = await db()('audit_log').count({ n: '*' }).first()
+    expect(Number(after!.n)).toBe(Number(before!.n))
+  })
+})

@@ -1,0 +1,74 @@
+// `npm run bench:preview`: the benchmark fleet (500 engines x 40 parts x 200 sessions, as bench:board
+// builds it) in the test database, the built server on loopback, and limit previews timed one after
+// another as the supplier engineer: the time from request to answer, several runs each. Nothing is
+// saved. Uses the test instance: do not run it beside `npm test`.
+import knexFactory from 'knex'
+import { knexConfig } from '../db/knexfile'
+import { ENGINES, PARTS, SESSIONS, seedLargeFleet } from './fleet'
+import { signIn, startServer, startTestDb } from './server'
+
+const PORT = Number(process.env.BENCH_PORT ?? 3396)
+const RUNS = Number(process.env.BENCH_RUNS ?? 5)
+const TARGET_MS = 2000
+
+async function main() {
+  const url = startTestDb()
+  if (process.env.BENCH_KEEP_FLEET !== '1') {
+    console.log(`seeding ${ENGINES} engines x ${PARTS} parts x ${SESSIONS} sessions into the test database`)
+    const t0 = Date.now()
+    await seedLargeFleet(url)
+    console.log(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`)
+  }
+  const knex = knexFactory(knexConfig(url))
+  const rod = await knex('component_types').where('code', 'KV8-ROD').first()
+  const crank = await knex('component_types').where('code', 'KV8-CRK').first()
+  const bench = await knex('engine_types').where('code', 'BENCH-40').first()
+  const bands = (typeof bench.over_rev_bands === 'string' ? JSON.parse(bench.over_rev_bands) : bench.over_rev_bands) as { minRpm: number }[]
+  await knex.destroy()
+
+  const server = await startServer(url, PORT)
+  try {
+    const base = server.base
+    const cookie = await signIn(base, 'engineer@keelbrook.test')
+    const w0 = Date.now()
+    await fetch(`${base}/api/board`, { headers: { cookie } })
+    console.log(`board answered once first (the fleet's life as a running server holds it): ${Date.now() - w0} ms`)
+
+    const cases: [string, string, Record<string, unknown>][] = [
+      ['conrod warning level 80 % -> 70 %', `/api/component-types/${rod.id}/preview`, { warningLevel: 0.7, dueLevel: 0.9 }],
+      ['crankshaft hours limit x 0.8', `/api/component-types/${crank.id}/preview`, { limitHours: Number(crank.limit_hours) * 0.8 }],
+      ['conrod damage exponent 13 -> 15 (new pair from rpm moments)', `/api/component-types/${rod.id}/preview`, { damageExponent: 15 }],
+      ['engine type reference rpm - 300 (new pairs from rpm moments)', `/api/engine-types/${bench.id}/preview`, { referenceRpm: bench.reference_rpm - 300 }],
+      ['engine type bands 100 rpm lower (over-revs decided again)', `/api/engine-types/${bench.id}/preview`, { overRevBands: bands.map((b) => ({ ...b, minRpm: b.minRpm - 100 })) }],
+    ]
+    console.log(`\n${RUNS} runs each, ms from request to answer (target < ${TARGET_MS} ms):`)
+    let worstMedian = 0
+    const firsts: number[] = []
+    for (const [name, path, body] of cases) {
+      const times: number[] = []
+      let last: any = null
+      let first: any = null
+      for (let i = 0; i < RUNS; i++) {
+        const t = performance.now()
+        const res = await fetch(`${base}${path}`, { method: 'POST', headers: { cookie, 'content-type': 'application/json', origin: base }, body: JSON.stringify(body) })
+        last = await res.json()
+        times.push(performance.now() - t)
+        first ??= last.timingsMs
+        if (!res.ok) throw new Error(`${name}: ${res.status} ${JSON.stringify(last).slice(0, 300)}`)
+      }
+      firsts.push(times[0]!)
+      const sorted = [...times].sort((a, b) => a - b)
+      const median = sorted[Math.floor(sorted.length / 2)]!
+      worstMedian = Math.max(worstMedian, median)
+      const s = last.summary
+      const tm = last.timingsMs
+      console.log(`${name.padEnd(62)} median ${median.toFixed(0).padStart(5)}  best ${sorted[0]!.toFixed(0).padStart(5)}  worst ${sorted[sorted.length - 1]!.toFixed(0).padStart(5)}   (${last.covered.engines} engines, ${last.covered.parts} parts; ${s.statusChanges} status changes, ${s.cannotFinish} lost events, ${s.dueEarlier} due earlier; first run: check ${first.check}, read and before ${first.readAndBefore}, after ${first.after} ms; last run (${tm.reused ? 'rows kept' : 'read afresh'}): check ${tm.check}, read and before ${tm.readAndBefore}, after ${tm.after}, compare ${tm.compare} ms)`)
+    }
+    console.log(`first run of each case (reads the fleet): ${firsts.map((t) => t.toFixed(0)).join(', ')} ms`)
+    console.log(`\ntarget: every median < ${TARGET_MS} ms -> ${worstMedian < TARGET_MS ? 'met' : 'NOT met'} (worst median ${worstMedian.toFixed(0)} ms)`)
+  } finally {
+    await server.stop()
+  }
+}
+
+await main()
