@@ -1,4 +1,5 @@
 import type { ComponentTypeDto, EngineTypeDto } from '#shared/types/fleet'
+import type { LimitSaveDto } from '#shared/types/limit-preview'
 import type { CategoryLevels } from '~/components/engine/EngineBoardRow.vue'
 
 /** Engine types with their design sheets; creating one and changing its loads. */
@@ -13,8 +14,14 @@ export async function useEngineTypes() {
     await $fetch(`/api/engine-types/${engineTypeId}`, { method: 'PATCH', body })
     await types.refresh()
   }
+  /** Saves a previewed change of reference speed or bands (409 when the fleet moved since the preview). */
+  async function saveEngineTypeLimits(engineTypeId: number, change: Record<string, unknown>, previewToken: string) {
+    const saved = await $fetch<LimitSaveDto>(`/api/engine-types/${engineTypeId}/limits`, { method: 'POST', body: { change, previewToken } })
+    await types.refresh()
+    return saved
+  }
 
-  return { engineTypes: types.data, error: types.error, refresh: types.refresh, createEngineType, updateEngineType }
+  return { engineTypes: types.data, error: types.error, refresh: types.refresh, createEngineType, updateEngineType, saveEngineTypeLimits }
 }
 
 /** Part types with their life limits; creating one and changing its limits. */
@@ -29,6 +36,12 @@ export async function useComponentTypes() {
     await $fetch(`/api/component-types/${componentTypeId}`, { method: 'PATCH', body })
     await types.refresh()
   }
+  /** Saves a previewed change of limits, levels or exponent (409 when the fleet moved since the preview). */
+  async function saveComponentTypeLimits(componentTypeId: number, change: Record<string, unknown>, previewToken: string) {
+    const saved = await $fetch<LimitSaveDto>(`/api/component-types/${componentTypeId}/limits`, { method: 'POST', body: { change, previewToken } })
+    await types.refresh()
+    return saved
+  }
 
   // Ticks on a group bar: the earliest warning and due level of the part types in that group.
   const levelsByCategory = computed<Record<string, CategoryLevels>>(() => {
@@ -40,5 +53,5 @@ export async function useComponentTypes() {
     return out
   })
 
-  return { componentTypes: types.data, levelsByCategory, error: types.error, refresh: types.refresh, createComponentType, updateComponentType }
+  return { componentTypes: types.data, levelsByCategory, error: types.error, refresh: types.refresh, createComponentType, updateComponentType, saveComponentTypeLimits }
 }

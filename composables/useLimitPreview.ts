@@ -1,10 +1,13 @@
-import type { LimitPreviewDto, LimitSaveDto, LimitTargetKind } from '#shared/types/limit-preview'
+import type { LimitPreviewDto, LimitTargetKind } from '#shared/types/limit-preview'
+
+/** Saves a previewed change and refreshes what it moved: `saveLimits` of useComponentTypes or useEngineTypes. */
+export type SaveLimits = (id: number, change: Record<string, unknown>, previewToken: string) => Promise<unknown>
 
 /**
  * A limit change previewed, then saved as previewed. The preview writes nothing; a save answers 409
  * when the fleet data moved since the preview, and the preview is then taken again on today's data.
  */
-export function useLimitPreview() {
+export function useLimitPreview(saveLimits: SaveLimits) {
   const base = (kind: LimitTargetKind, id: number) => `/api/${kind}s/${id}`
   const preview = ref<LimitPreviewDto | null>(null)
   const change = ref<Record<string, unknown> | null>(null)
@@ -35,8 +38,7 @@ export function useLimitPreview() {
     pending.value = true
     error.value = ''
     try {
-      await $fetch<LimitSaveDto>(`${base(p.target.kind, p.target.id)}/limits`, { method: 'POST', body: { change: change.value, previewToken: p.previewToken } })
-      await Promise.all([refreshNuxtData('component-types'), refreshNuxtData('engine-types')])
+      await saveLimits(p.target.id, change.value, p.previewToken)
       close()
       return true
     } catch (e: any) {
