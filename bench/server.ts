@@ -26,7 +26,9 @@ export async function startServer(dbUrl: string, port: number): Promise<BenchSer
   if (!existsSync('.output/server/index.mjs')) sh('npx', ['nuxt', 'build'])
   const base = `http://127.0.0.1:${port}`
   const storage = mkdtempSync(join(tmpdir(), 'crankledger-bench-files-'))
-  const child = spawn(process.execPath, ['.output/server/index.mjs'], {
+  // BENCH_NODE_ARGS: flags for the server's node, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof" to see where its time goes
+  const nodeArgs = (process.env.BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean)
+  const child = spawn(process.execPath, [...nodeArgs, '.output/server/index.mjs'], {
     env: { ...process.env, PORT: String(port), NITRO_HOST: '127.0.0.1', NUXT_DATABASE_URL: dbUrl, NUXT_PUBLIC_URL: base, NUXT_SESSION_PASSWORD: 'bench-session-password-0123456789abcdef', NUXT_ALERTS_ENABLED: 'false', NUXT_STORAGE_DIR: storage },
     stdio: ['ignore', 'ignore', 'inherit'],
   })

@@ -59,7 +59,7 @@ start() {
   mariadbd --no-defaults --user=root --datadir="$DIR/data" --socket="$SOCK" --port="$PORT" \
     --bind-address=127.0.0.1 --skip-name-resolve --pid-file="$PID" --log-error="$LOG" \
     --character-set-server=utf8mb4 --collation-server=utf8mb4_unicode_ci \
-    --innodb-buffer-pool-size=256M --max-connections=300 >/dev/null 2>&1 &
+    --innodb-buffer-pool-size=${CL_DB_BUFFER_POOL:-1G} --max-connections=300 >/dev/null 2>&1 &
   for _ in $(seq 1 100); do
     if running; then break; fi
     sleep 0.2

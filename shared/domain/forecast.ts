@@ -65,15 +65,26 @@ function timeOf(iso: string): number {
   return t
 }
 
+// Every part of an engine is projected over the same list of events: it is put in order once per list.
+const ordered = new WeakMap<PlannedEvent[], PlannedEvent[]>()
+
 function inDateOrder(events: PlannedEvent[]): PlannedEvent[] {
-  return [...events].sort((a, b) => timeOf(a.startsAt) - timeOf(b.startsAt) || a.eventId - b.eventId)
+  let sorted = ordered.get(events)
+  if (!sorted) {
+    const keyed = events.map((e) => ({ e, t: timeOf(e.startsAt) }))
+    sorted = keyed.sort((a, b) => a.t - b.t || a.e.eventId - b.e.eventId).map((k) => k.e)
+    ordered.set(events, sorted)
+  }
+  return sorted
 }
 
 /** Duty of the last N sessions by `at`. */
 export function recentDuty(sessions: SessionUsage[], lastN: number): EngineDuty {
-  const recent = [...sessions]
-    .sort((a, b) => timeOf(b.at) - timeOf(a.at) || b.sessionId - a.sessionId)
+  const recent = sessions
+    .map((s) => ({ s, t: timeOf(s.at) }))
+    .sort((a, b) => b.t - a.t || b.s.sessionId - a.s.sessionId)
     .slice(0, Math.max(0, Math.floor(lastN)))
+    .map((k) => k.s)
   let runningSeconds = 0
   let km = 0
   const overRevs: Record<string, number> = {}
@@ -96,10 +107,19 @@ export function recentDuty(sessions: SessionUsage[], lastN: number): EngineDuty 
  */
 export function eqPerRunningHour(duty: EngineDuty, cfg: EngineTypeLifeConfig, exponent: number): number {
   if (duty.runningSeconds <= 0) return Math.pow(cfg.revLimitRpm / cfg.referenceRpm, exponent)
-  let eq = 0
-  for (const s of duty.recent) eq += sessionEquivalentHours(s, cfg, exponent)
-  return eq / (duty.runningSeconds / SECONDS_PER_HOUR)
+  // the parts of one engine share its duty: each rate is summed once per duty and life configuration
+  let rates = eqRates.get(duty)
+  if (!rates) eqRates.set(duty, (rates = new Map()))
+  const key = `${exponent}@${cfg.referenceRpm}/${cfg.bandWidthRpm}`
+  let rate = rates.get(key)
+  if (rate === undefined) {
+    let eq = 0
+    for (const s of duty.recent) eq += sessionEquivalentHours(s, cfg, exponent)
+    rates.set(key, (rate = eq / (duty.runningSeconds / SECONDS_PER_HOUR)))
+  }
+  return rate
 }
+const eqRates = new WeakMap<EngineDuty, Map<string, number>>()
 
 /**
  * Projects a part's life over coming events (taken in date order). Running per event from
