@@ -325,18 +325,50 @@ function groupLife(parts: PartLifeDto[]) {
   return [...byCategory.entries()].map(([category, p]) => ({ category, fraction: p.fraction, status: p.status, governing: p.governing, serial: p.serial }))
 }
 
-// Cache: one whole-fleet computation per life revision and hour (forecasts depend on which events are still to come).
-let cached: { key: string; value: Promise<FleetLife> } | null = null
+// Cache: one whole-fleet computation per life revision and hour (forecasts depend on which events are
+// still to come). The rows it was computed from stay beside it for a few idle minutes, so that a
+// limit preview on the same data starts from them instead of reading the whole fleet again.
+interface CachedFleet {
+  key: string
+  value: Promise<FleetLife>
+  rows: Promise<FleetRows> | null
+  dropRows?: ReturnType<typeof setTimeout>
+}
+const KEEP_ROWS_MS = 10 * 60_000
+let cached: CachedFleet | null = null
+
+const cacheKey = (revision: number, now: Date) => `${revision}:${Math.floor(now.getTime() / 3_600_000)}`
 
 export async function fleetLife(db: Knex, now = new Date()): Promise<FleetLife> {
   const revision = await lifeRevision(db)
-  const key = `${revision}:${Math.floor(now.getTime() / 3_600_000)}`
+  const key = cacheKey(revision, now)
   if (!cached || cached.key !== key) {
-    const value = computeFleetLife(db, now, revision)
-    cached = { key, value }
+    if (cached?.dropRows) clearTimeout(cached.dropRows)
+    const rows = loadFleetRows(db, now, { lifeOnly: true })
+    const value = rows.then((r) => fleetLifeFromRows(r, now, revision))
+    const entry: CachedFleet = { key, value, rows }
+    cached = entry
     value.catch(() => {
-      if (cached?.value === value) cached = null
+      if (cached === entry) cached = null
     })
   }
+  keepRowsAwhile(cached)
   return cached.value
+}
+
+function keepRowsAwhile(entry: CachedFleet) {
+  if (!entry.rows) return
+  if (entry.dropRows) clearTimeout(entry.dropRows)
+  entry.dropRows = setTimeout(() => (entry.rows = null), KEEP_ROWS_MS)
+  entry.dropRows.unref?.()
+}
+
+/**
+ * The rows and the life the cache holds for this revision and hour, while its rows are kept (null
+ * otherwise). The rows were read without one snapshot: the caller checks that they match its own.
+ */
+export function cachedFleet(revision: number, now: Date): { rows: Promise<FleetRows>; life: Promise<FleetLife> } | null {
+  if (!cached || cached.key !== cacheKey(revision, now) || !cached.rows) return null
+  keepRowsAwhile(cached)
+  return { rows: cached.rows, life: cached.value }
 }

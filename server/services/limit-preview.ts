@@ -1,6 +1,8 @@
 // A limit change previewed before it is saved. The preview reads the supplier's fleet once, in one
 // read-only transaction (one consistent snapshot, and the database itself refuses any write), runs
 // the life engine twice on those rows (limits as they are, and as proposed), and compares the two.
+// When the server already holds the fleet's rows and life for the board, and they show exactly what
+// the snapshot shows (same fingerprint), it starts from those instead of reading them again.
 // Its token carries a fingerprint of the data it read; saving checks it again under lock and
 // refuses with 409 when anything that moves life has moved meanwhile, so what is saved is what
 // was previewed, and the audit row keeps the preview's summary.
@@ -16,7 +18,7 @@ import { readPreviewToken, signPreviewToken } from '../utils/preview-token'
 import { updateComponentType } from './component-types'
 import { updateEngineType } from './engine-types'
 import { lifeRevision, loadComponentTypes, loadEngineTypes, toComponentType, toEngineType } from './fleet-data'
-import { fleetLifeFromRows, loadFleetRows, type FleetLife, type FleetRows } from './life'
+import { cachedFleet, fleetLifeFromRows, loadFleetRows, type FleetLife, type FleetRows } from './life'
 
 type Db = Knex | Knex.Transaction
 type Target =
@@ -53,7 +55,8 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
       const t0 = performance.now()
       const current = await targetRow(trx, actor, target)
       checkChange(target, current.dto)
-      const fingerprint = await fleetFingerprint(trx, now)
+      const facts = await fleetFacts(trx, now)
+      const fingerprint = fingerprintOf(facts)
       const pairs = neededPairs(target)
       let base = keptRows(fingerprint, current.supplierId, now, pairs)
       const t1 = performance.now()
@@ -61,10 +64,16 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
         // the supplier's own engines and part types: the catalogue owner's fleet is what its limits reach
         const typeIds = new Set<number>(await trx('component_types').where('supplier_id', current.supplierId).pluck('id'))
         const engineIds = new Set<number>(await trx('engines').where('supplier_id', current.supplierId).pluck('id'))
-        const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, await supplierExponents(trx, current.supplierId)) }, (qb) =>
-          qb.where('e.supplier_id', current.supplierId),
-        )
-        base = keepRows({ key: keyOf(fingerprint, current.supplierId, now), pairs, rows, engineIds, typeIds, before: previewFleet(fleetLifeFromRows(rows, now, 0), engineIds, typeIds) })
+        const key = keyOf(fingerprint, current.supplierId, now)
+        const shared = pairs.length ? null : await sharedRows(facts.revision, fingerprint, now)
+        if (shared) {
+          base = keepRows({ key, pairs, rows: shared.rows, engineIds, typeIds, before: previewFleet(shared.life, engineIds, typeIds), source: 'board' })
+        } else {
+          const rows = await loadFleetRows(trx, now, { writeCache: false, lifeOnly: true, extraPairs: extraPairsFor(target, await supplierExponents(trx, current.supplierId)) }, (qb) =>
+            qb.where('e.supplier_id', current.supplierId),
+          )
+          base = keepRows({ key, pairs, rows, engineIds, typeIds, before: previewFleet(fleetLifeFromRows(rows, now, 0), engineIds, typeIds), source: 'read' })
+        }
       }
       const before = base.before
       const t2 = performance.now()
@@ -84,7 +93,7 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
           events: new Set(before.engines.flatMap((e) => e.canFinish.map((c) => c.eventId))).size,
         },
         computedAt: now.toISOString(),
-        timingsMs: { check: Math.round(t1 - t0), readAndBefore: Math.round(t2 - t1), reused: base.reused, after: Math.round(t3 - t2), compare: Math.round(performance.now() - t3) },
+        timingsMs: { check: Math.round(t1 - t0), readAndBefore: Math.round(t2 - t1), rows: base.reused ? 'kept' : base.source, after: Math.round(t3 - t2), compare: Math.round(performance.now() - t3) },
         previewToken: signPreviewToken(payload),
       }
     },
@@ -96,7 +105,7 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
 // fingerprint, same hour) so that a supplier engineer trying values one after another waits for one
 // read; dropped after a few idle minutes. Rows filled with a proposed exponent or reference speed are
 // kept with those pairs: a preview needing others reads afresh.
-interface Kept { key: string; pairs: string[]; rows: FleetRows; engineIds: Set<number>; typeIds: Set<number>; before: PreviewFleet; reused?: boolean }
+interface Kept { key: string; pairs: string[]; rows: FleetRows; engineIds: Set<number>; typeIds: Set<number>; before: PreviewFleet; reused?: boolean; source: 'board' | 'read' }
 const KEEP_MS = 10 * 60_000
 let kept: Kept | null = null
 let dropTimer: ReturnType<typeof setTimeout> | null = null
@@ -135,7 +144,7 @@ async function save(db: Knex, actor: Actor, target: Target, token: string, now =
     }
     // Every write that moves life bumps this row: holding it keeps them out until the change is in.
     await trx('life_revision').where('id', 1).forUpdate().first()
-    if ((await fleetFingerprint(trx, now)) !== payload.fingerprint) {
+    if (fingerprintOf(await fleetFacts(trx, now)) !== payload.fingerprint) {
       conflict('The fleet data changed since this preview (a session, build, plan or limit was saved meanwhile): nothing was saved; check the refreshed preview and save again', { reason: 'moved' })
     }
     const auditNote = { preview: payload.summary }
@@ -200,7 +209,15 @@ function previewFleet(life: FleetLife, engineIds: Set<number>, typeIds: Set<numb
 }
 
 /** Everything a preview's answer depends on besides the change: any write that moves life bumps the revision; the rest is read whole. */
-async function fleetFingerprint(db: Db, now: Date): Promise<string> {
+interface FleetFacts {
+  revision: number
+  events: number[]
+  engines: { id: number; team_id: number | null; status: string; engine_type_id: number }[]
+  componentTypes: unknown[]
+  engineTypes: unknown[]
+}
+
+async function fleetFacts(db: Db, now: Date): Promise<FleetFacts> {
   const [revision, events, engines, componentTypes, engineTypes] = await Promise.all([
     lifeRevision(db),
     db('events').where('ends_at', '>', now).orderBy('id').pluck('id'),
@@ -208,7 +225,37 @@ async function fleetFingerprint(db: Db, now: Date): Promise<string> {
     loadComponentTypes(db),
     loadEngineTypes(db),
   ])
-  return createHash('sha256').update(JSON.stringify({ revision, events, engines, componentTypes, engineTypes })).digest('base64url')
+  return { revision, events, engines, componentTypes, engineTypes }
+}
+
+/** The same facts as the fleet rows hold them (the rows' coming events as they were read). */
+function factsOfRows(rows: FleetRows, revision: number): FleetFacts {
+  return {
+    revision,
+    events: rows.eventRows.map((e: any) => e.id as number).sort((a, b) => a - b),
+    engines: [...rows.engineRows].sort((a: any, b: any) => a.id - b.id).map((e: any) => ({ id: e.id, team_id: e.team_id, status: e.status, engine_type_id: e.engine_type_id })),
+    componentTypes: rows.componentTypes,
+    engineTypes: rows.engineTypes,
+  }
+}
+
+function fingerprintOf(facts: FleetFacts): string {
+  return createHash('sha256').update(JSON.stringify(facts)).digest('base64url')
+}
+
+/**
+ * The board's rows and life, when the server holds them for this revision and hour and they show
+ * exactly what this preview's own snapshot shows (the same fingerprint); null otherwise.
+ */
+async function sharedRows(revision: number, fingerprint: string, now: Date): Promise<{ rows: FleetRows; life: FleetLife } | null> {
+  const shared = cachedFleet(revision, now)
+  if (!shared) return null
+  try {
+    const [rows, life] = await Promise.all([shared.rows, shared.life])
+    return fingerprintOf(factsOfRows(rows, revision)) === fingerprint ? { rows, life } : null
+  } catch {
+    return null // the board's read failed: this preview reads for itself
+  }
 }
 
 /** JSON with object keys sorted, so that the same change always reads the same. */

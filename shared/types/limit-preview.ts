@@ -14,8 +14,8 @@ export interface LimitPreviewDto extends LimitPreviewResult {
   /** engines and parts the computation covered (the supplier's fleet) */
   covered: { engines: number; parts: number; events: number }
   computedAt: string
-  /** where the server's time went, for the benchmark */
-  timingsMs: { check: number; readAndBefore: number; reused: boolean; after: number; compare: number }
+  /** where the time went; `rows`: kept from the last preview, shared with the board's life, or read for this preview */
+  timingsMs: { check: number; readAndBefore: number; rows: 'kept' | 'board' | 'read'; after: number; compare: number }
   /** hand back with the change to save it; refused (409) when the data the preview saw has moved */
   previewToken: string
 }

@@ -16,6 +16,8 @@ export const TABLET = { width: 820, height: 1180 }
 export async function signedInPage(browser: Browser, email: string, viewport = LAPTOP): Promise<Page> {
   const page = await browser.newPage({ viewport, baseURL: BASE })
   await page.goto('/login')
+  // the button is enabled once the page is hydrated: values typed before that would be reset
+  await page.locator('button[type=submit]:enabled').waitFor()
   await page.fill('#email', email)
   await page.fill('#password', DEMO_PASSWORD)
   await page.click('button[type=submit]')

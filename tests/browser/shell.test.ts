@@ -15,12 +15,18 @@ describe('the shell in Chromium', () => {
   it('refuses a wrong password on the sign-in page with a readable message', async () => {
     const page = await browser.newPage({ baseURL: process.env.NUXT_PUBLIC_URL })
     await page.goto('/login')
+    await page.locator('button[type=submit]:enabled').waitFor()
     await page.fill('#email', USERS.managerC)
     await page.fill('#password', 'not-my-password')
     await page.click('button[type=submit]')
     await expect.poll(() => page.locator('[data-test=login-error]').textContent()).toBe('E-mail or password is wrong.')
     await screenshot(page, 'login-error')
     await page.close()
+  })
+
+  it('serves the sign-in button disabled until the page is hydrated (the browser never sends the password itself)', async () => {
+    const html = await (await fetch(`${process.env.NUXT_PUBLIC_URL}/login`)).text()
+    expect(html).toMatch(/<button[^>]*type="submit"[^>]*disabled/)
   })
 
   it('signs in and shows the navigation shell with who is signed in', async () => {

@@ -190,3 +190,33 @@ describe('figures the stored equivalent hours do not hold yet', () => {
     expect(gained).toEqual(preview.body.canFinishNow.map((c: any) => `${c.engineSerial}@${c.eventId}`).sort())
   })
 })
+
+describe('a preview that starts from the fleet the server holds for the board', () => {
+  it('answers exactly as a preview that reads the fleet itself', async () => {
+    // a hours limit short enough that parts change status, so that the lists compared are not empty
+    const limitHours = Number((await db()('component_types').where('id', trb.id).first()).limit_hours)
+    const change = { limitHours: Math.round(limitHours * 0.2) }
+    const strip = ({ previewToken, computedAt, timingsMs, ...rest }: any) => rest
+    // what any write that moves life does: nothing the server holds is current any more
+    const bump = () => db()('life_revision').where('id', 1).increment('revision', 1)
+
+    await bump()
+    const own = await supplier.post(`/api/component-types/${trb.id}/preview`, change)
+    expect(own.status).toBe(200)
+    expect(own.body.timingsMs.rows).toBe('read')
+
+    await bump()
+    expect((await supplier.get('/api/board')).status).toBe(200)
+    const shared = await supplier.post(`/api/component-types/${trb.id}/preview`, change)
+    expect(shared.status).toBe(200)
+    expect(shared.body.timingsMs.rows).toBe('board')
+
+    expect(shared.body.statusChanges.length).toBeGreaterThan(0)
+    expect(strip(shared.body)).toEqual(strip(own.body))
+
+    // a new damage exponent needs equivalent hours the board's rows do not carry: it reads for itself
+    const exponent = await supplier.post(`/api/component-types/${pst.id}/preview`, { damageExponent: Number(pst.damage_exponent) + 1 })
+    expect(exponent.status).toBe(200)
+    expect(exponent.body.timingsMs.rows).toBe('read')
+  })
+})
