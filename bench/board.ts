@@ -2,7 +2,7 @@
 // test database, the built server on loopback, and autocannon at 50 connections against the board API,
 // beside a trivial route measured in the same run. Loopback only; bounded in time.
 import autocannon from 'autocannon'
-import { ENGINES, PARTS, SESSIONS, seedLargeFleet } from './fleet'
+import { prepareFleet } from './fleet'
 import { signIn, startServer, startTestDb } from './server'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3395)
@@ -22,10 +22,7 @@ function line(name: string, r: autocannon.Result) {
 
 async function main() {
   const url = startTestDb()
-  console.log(`seeding ${ENGINES} engines x ${PARTS} parts x ${SESSIONS} sessions into the test database`)
-  const t0 = Date.now()
-  await seedLargeFleet(url)
-  console.log(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`)
+  await prepareFleet(url)
   const server = await startServer(url, PORT)
   try {
     const base = server.base

@@ -11,6 +11,15 @@ export const ENGINES = Number(process.env.BENCH_ENGINES ?? 500)
 export const PARTS = 40
 export const SESSIONS = Number(process.env.BENCH_SESSIONS ?? 200)
 
+/** Seeds the fleet, or keeps the one a previous bench left in the test database (BENCH_KEEP_FLEET=1). */
+export async function prepareFleet(url: string) {
+  if (process.env.BENCH_KEEP_FLEET === '1') return console.log('using the fleet already in the test database (BENCH_KEEP_FLEET=1)')
+  console.log(`seeding ${ENGINES} engines x ${PARTS} parts x ${SESSIONS} sessions into the test database`)
+  const t0 = Date.now()
+  await seedLargeFleet(url)
+  console.log(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`)
+}
+
 export async function seedLargeFleet(url: string) {
   sh('npx', ['tsx', 'db/cli.ts', 'reset'], { NUXT_DATABASE_URL: url })
   const knex = knexFactory(knexConfig(url))

@@ -3,23 +3,26 @@
 // supplier engineer, from request to answer: each one alone right after a write (it reads the fleet
 // itself), then after the board was opened once, several runs each. Nothing is saved. Uses the test
 // instance: do not run it beside `npm test`.
+import { readFileSync } from 'node:fs'
 import knexFactory from 'knex'
 import { knexConfig } from '../db/knexfile'
-import { ENGINES, PARTS, SESSIONS, seedLargeFleet } from './fleet'
+import { prepareFleet } from './fleet'
 import { signIn, startServer, startTestDb } from './server'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3396)
 const RUNS = Number(process.env.BENCH_RUNS ?? 5)
 const TARGET_MS = 2000
 
+/** The server's resident memory now and at its peak, MB (Linux). */
+function memory(pid: number | undefined): string {
+  const status = readFileSync(`/proc/${pid}/status`, 'utf8')
+  const mb = (field: string) => (Number(/\d+/.exec(status.match(new RegExp(`${field}:.*`))?.[0] ?? '')?.[0] ?? 0) / 1024).toFixed(0)
+  return `server resident ${mb('VmRSS')} MB, peak ${mb('VmHWM')} MB`
+}
+
 async function main() {
   const url = startTestDb()
-  if (process.env.BENCH_KEEP_FLEET !== '1') {
-    console.log(`seeding ${ENGINES} engines x ${PARTS} parts x ${SESSIONS} sessions into the test database`)
-    const t0 = Date.now()
-    await seedLargeFleet(url)
-    console.log(`  seeded in ${((Date.now() - t0) / 1000).toFixed(1)} s`)
-  }
+  await prepareFleet(url)
   const knex = knexFactory(knexConfig(url))
   const rod = await knex('component_types').where('code', 'KV8-ROD').first()
   const crank = await knex('component_types').where('code', 'KV8-CRK').first()
@@ -48,19 +51,18 @@ async function main() {
     ]
     const timings = (tm: any) => `rows ${tm.rows}: check ${tm.check}, read and before ${tm.readAndBefore}, after ${tm.after}, compare ${tm.compare} ms`
 
-    console.log(`
-1. Each preview as the first request after a write (nothing held: the preview reads the fleet itself), ms:`)
+    console.log(`\n1. Each preview as the first request after a write (nothing held: the preview reads the fleet itself), ms:`)
     for (const [name, path, body] of cases) {
       await bumpRevision()
       const { ms, json } = await ask(path, body)
       console.log(`${name.padEnd(62)} ${ms.toFixed(0).padStart(6)}   (${timings(json.timingsMs)})`)
     }
 
+    console.log(memory(server.process.pid))
     await bumpRevision()
     const w0 = Date.now()
     await fetch(`${base}/api/board`, { headers: { cookie } })
-    console.log(`
-2. After a write, the board opened once (${Date.now() - w0} ms; the server then holds the fleet's life), then each preview ${RUNS} times in a row, ms (target < ${TARGET_MS} ms):`)
+    console.log(`\n2. After a write, the board opened once (${Date.now() - w0} ms; the server then holds the fleet's life; ${memory(server.process.pid)}), then each preview ${RUNS} times in a row, ms (target < ${TARGET_MS} ms):`)
     let worstMedian = 0
     for (const [name, path, body] of cases) {
       const times: number[] = []
@@ -81,8 +83,8 @@ async function main() {
           `   (${last.covered.engines} engines, ${last.covered.parts} parts; ${s.statusChanges} status changes, ${s.cannotFinish} lost events, ${s.dueEarlier} due earlier; first run ${timings(first.timingsMs)}; last run ${timings(last.timingsMs)})`,
       )
     }
-    console.log(`
-target: every median < ${TARGET_MS} ms -> ${worstMedian < TARGET_MS ? 'met' : 'NOT met'} (worst median ${worstMedian.toFixed(0)} ms)`)
+    console.log(`\n${memory(server.process.pid)} (the board's rows are held for 10 idle minutes beside its life)`)
+    console.log(`\ntarget: every median < ${TARGET_MS} ms -> ${worstMedian < TARGET_MS ? 'met' : 'NOT met'} (worst median ${worstMedian.toFixed(0)} ms)`)
   } finally {
     await server.stop()
     await knex.destroy()
