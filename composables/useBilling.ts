@@ -1,16 +1,20 @@
 import type { ContractDto, StatementDto, StatementSummaryDto } from '#shared/types/billing'
+import type { EventDto } from '#shared/types/fleet'
 
 interface OrganisationRow { id: number; name: string; kind: 'supplier' | 'team'; supplierId: number | null }
 
 /** The supplier's billing page: contracts, teams, every statement, and the writes on them. */
 export async function useBillingOverview() {
-  const [contracts, statements, organisations, engineTypes] = await Promise.all([
+  const [contracts, statements, organisations, engineTypes, events] = await Promise.all([
     useFetch<ContractDto[]>('/api/billing/contracts', { key: 'billing-contracts', default: () => [] }),
     useFetch<StatementSummaryDto[]>('/api/billing/statements', { key: 'billing-statements', default: () => [] }),
     useFetch<OrganisationRow[]>('/api/organisations', { key: 'billing-organisations', default: () => [] }),
     useFetch<{ id: number; code: string }[]>('/api/engine-types', { key: 'billing-engine-types', default: () => [] }),
+    useFetch<EventDto[]>('/api/events', { key: 'billing-events', default: () => [] }),
   ])
   const teams = computed(() => organisations.data.value.filter((o) => o.kind === 'team'))
+  /** events that have ended, latest first: only a closed period can be billed */
+  const closedEvents = computed(() => events.data.value.filter((e) => Date.parse(e.endsAt) <= Date.now()).sort((a, b) => b.endsAt.localeCompare(a.endsAt)))
 
   async function createContract(body: Record<string, unknown>) {
     await $fetch('/api/billing/contracts', { method: 'POST', body })
@@ -37,7 +41,7 @@ export async function useBillingOverview() {
     await statements.refresh()
   }
 
-  return { contracts: contracts.data, statements: statements.data, teams, engineTypes: engineTypes.data, error: statements.error, refresh: statements.refresh, createContract, endContract, saveContact, generate, review, issue }
+  return { contracts: contracts.data, statements: statements.data, teams, closedEvents, engineTypes: engineTypes.data, error: statements.error, refresh: statements.refresh, createContract, endContract, saveContact, generate, review, issue }
 }
 
 /** The statements the actor may see (a team manager: their own team's). */

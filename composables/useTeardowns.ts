@@ -43,6 +43,11 @@ export async function useTeardown(id: Ref<number>) {
     await $fetch(`${base()}/findings/${findingId}/photos`, { method: 'POST', body })
     await refresh()
   }
+  /** The supplier marks a finding as the team's doing: its lease contract's damage charge goes on the team's statement. */
+  async function chargeFinding(findingId: number, reason: string) {
+    await $fetch(`/api/billing/findings/${findingId}/charge`, { method: 'POST', body: { reason } })
+    await refresh()
+  }
   async function swapPart(body: TeardownSwapBody) {
     await $fetch(`${base()}/swaps`, { method: 'POST', body })
     await refresh()
@@ -53,7 +58,7 @@ export async function useTeardown(id: Ref<number>) {
     await refresh()
   }
 
-  return { td: teardown.data, error: teardown.error, refresh, outbox, saveMeasurement, saveFinding, uploadPhoto, swapPart, transition }
+  return { td: teardown.data, error: teardown.error, refresh, outbox, saveMeasurement, saveFinding, uploadPhoto, chargeFinding, swapPart, transition }
 }
 
 /** One teardown as its printable report shows it (read once: the report does not change it). */

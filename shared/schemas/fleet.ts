@@ -147,7 +147,8 @@ export const InstallSchema = z.object({
 
 export const RemoveSchema = z.object({
   at: z.iso.datetime({ offset: true }).optional(),
-  status: z.enum(['serviceable', 'quarantined', 'scrapped']).default('serviceable'),
+  // no default: the one removing a part says what state it leaves in (a part taken out after an over-rev is not a spare)
+  status: z.enum(['serviceable', 'quarantined', 'scrapped']),
 })
 
 export const EventCreateSchema = z.object({

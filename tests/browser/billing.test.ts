@@ -10,11 +10,14 @@ const FAKE = `http://127.0.0.1:${process.env.CL_PAYMENT_PORT || '12112'}`
 const A4 = { width: 794, height: 1123 }
 
 let browser: Browser
+const created: number[] = []
 beforeAll(async () => {
   browser = await launch()
 })
 afterAll(async () => {
   await browser?.close()
+  // the event statement computed below is a draft no other test reads
+  if (created.length) await db()('statements').whereIn('id', created).delete()
 })
 
 describe('billing in the browser', () => {
@@ -57,5 +60,33 @@ describe('billing in the browser', () => {
     for (const part of ['invoice', number, 'Keelbrook Engine Works', 'Bill to', 'Marlowe Vane Racing', 'Accounts@marlowe.test', 'Tax 20.00 %', 'Total EUR']) expect(text).toContain(part.toLowerCase())
     const pdf = await page.pdf({ format: 'A4', printBackground: true })
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
+  })
+
+  it('computes a statement for one event, and names the statement an overlapping event would bill twice', async () => {
+    const page = await signedInPage(browser, USERS.supplierEngineer)
+    await page.goto(`${BASE}/billing`, { waitUntil: 'networkidle' })
+    const form = page.locator('[data-test=new-statement]')
+    // Marlowe's recent months are on statements: its latest event would bill their sessions again
+    const marlowe = await db()('organisations').where('name', 'Marlowe Vane Racing').first('id')
+    await form.locator('#st-team').selectOption(String(marlowe.id))
+    await form.locator('[data-test=period-event]').check()
+    const latest = await db()('events').where('ends_at', '<', new Date()).orderBy('ends_at', 'desc').first('id', 'name')
+    await form.locator('#st-event').selectOption(String(latest.id))
+    await form.getByRole('button', { name: 'Compute draft' }).click()
+    await expect.poll(() => form.getByRole('alert').innerText()).toMatch(new RegExp(`${latest.name}.*overlaps statement`))
+    await screenshot(page, 'billing-event-refused-laptop')
+
+    // Tidewater's oldest closed event is on no statement: a draft for that event alone
+    const tidewater = await db()('organisations').where('name', 'Tidewater Apex Motorsport').first('id')
+    const oldest = await db()('events').where('ends_at', '<', new Date()).orderBy('ends_at', 'asc').first('id', 'name')
+    await form.locator('#st-team').selectOption(String(tidewater.id))
+    await form.locator('#st-event').selectOption(String(oldest.id))
+    await form.getByRole('button', { name: 'Compute draft' }).click()
+    await page.waitForURL(/\/statements\/\d+$/)
+    created.push(Number(new URL(page.url()).pathname.split('/').pop()))
+    const row = await db()('statements').where('id', created[0]).first('period_kind', 'period_label', 'state', 'team_id')
+    expect(row).toEqual({ period_kind: 'event', period_label: oldest.name, state: 'draft', team_id: tidewater.id })
+    await expect.poll(() => page.locator('body').innerText()).toContain(oldest.name)
+    await page.close()
   })
 })

@@ -65,6 +65,8 @@ describe('teardown on a tablet', () => {
     await page.fill('[data-test=f-note]', 'Big-end shell scored')
     await page.click('[data-test=f-save]')
     await page.waitForSelector('[data-test="finding-rod-1"]')
+    // a mechanic records findings; charging one to the team is the supplier engineer's call
+    expect(await page.locator('[data-test^=charge-btn]').count()).toBe(0)
     await page.setInputFiles('[data-test="photo-rod-1"]', { name: 'rod1.jpg', mimeType: 'image/jpeg', buffer: tinyJpeg() })
     const img = page.locator('[data-test="finding-rod-1"] img')
     await img.waitFor()
@@ -96,6 +98,17 @@ describe('teardown on a tablet', () => {
     await signer.screenshot({ path: 'screenshots/teardown-signed-tablet.png' })
     const row = await db()('engines').where('id', engine.id).first()
     expect([row.status, row.location]).toEqual(['active', 'shelf'])
+
+    // the supplier's engineer puts the conrod's damage down to the team: its lease contract prices it
+    const finding = await db()('teardown_findings').where('teardown_id', td).first()
+    const reason = 'Over-rev on the cool-down lap, in the logger file'
+    await signer.click(`[data-test=charge-btn-${finding.id}]`)
+    await signer.fill('[data-test=charge-reason]', reason)
+    await signer.click('[data-test=charge-save]')
+    await expect.poll(() => signer.locator(`[data-test=charge-${finding.id}]`).innerText()).toContain(`Charged to the team · ${reason}`)
+    expect((await db()('finding_charges').where('finding_id', finding.id).first()).reason).toBe(reason)
+    await signer.locator(`[data-test=charge-${finding.id}]`).scrollIntoViewIfNeeded()
+    await signer.screenshot({ path: 'screenshots/teardown-finding-charged-tablet.png' })
 
     await signer.goto(`${BASE}/teardowns/${td}/report`, { waitUntil: 'networkidle' })
     await signer.locator('[data-test=report]').waitFor()

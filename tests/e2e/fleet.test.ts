@@ -75,6 +75,11 @@ describe('life accounting through the API', () => {
     expect(before.body.part.hours).toBeGreaterThan(1)
     const displaced = await installationAt(to, 'rod-1')
 
+    // the removed part's state is never assumed
+    const unnamed = await supplier.post(`/api/installations/${moving.id}/remove`, {})
+    expect(unnamed.status).toBe(400)
+    expect(unnamed.body.message).toMatch(/status/)
+    expect((await db()('installations').where('id', moving.id).first()).to_at).toBeNull()
     expect((await supplier.post(`/api/installations/${moving.id}/remove`, { status: 'serviceable' })).status).toBe(200)
     expect((await supplier.post(`/api/installations/${displaced.id}/remove`, { status: 'serviceable' })).status).toBe(200)
     const serial = before.body.part.serial

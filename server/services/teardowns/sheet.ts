@@ -145,6 +145,13 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
   const measurements = await db('teardown_measurements as m').join('users as u', 'u.id', 'm.measured_by').where('m.teardown_id', td.id).select('m.*', 'u.name as measured_by_name')
   const findingRows = await db('teardown_findings').where('teardown_id', td.id).orderBy('id')
   const photos = await db('teardown_photos').whereIn('finding_id', findingRows.map((f) => f.id).concat([0])).orderBy('id')
+  // a finding the supplier marked as the team's doing: priced on the team's statement by its lease contract
+  const charges = new Map(
+    (await db('finding_charges as c').join('users as u', 'u.id', 'c.marked_by').whereIn('c.finding_id', findingRows.map((f) => f.id).concat([0])).select('c.finding_id', 'c.reason', 'c.marked_at', 'u.name')).map((c) => [
+      c.finding_id,
+      { reason: c.reason as string, markedAt: iso(c.marked_at), markedByName: c.name as string },
+    ]),
+  )
   const swaps = await db('teardown_swaps as s')
     .leftJoin('installations as r', 'r.id', 's.removed_installation_id')
     .leftJoin('components as rc', 'rc.id', 'r.component_id')
@@ -201,6 +208,7 @@ export async function teardownDetail(db: Knex, actor: Actor, id: number) {
     disposition: f.disposition,
     createdAt: iso(f.created_at),
     photos: photos.filter((p) => p.finding_id === f.id).map((p) => ({ id: p.id, url: `/api/teardown-photos/${p.id}`, contentType: p.content_type, sizeBytes: p.size_bytes, width: p.width, height: p.height })),
+    charge: charges.get(f.id) ?? null,
   }))
   // Serviceable spares of the types this engine takes, with their life, for the swap form.
   const typeIds = [...new Set(et!.positions.map((p) => p.componentTypeId))]
