@@ -68,3 +68,5 @@ export function useLimitPreview(saveLimits: SaveLimits) {
 
   return { preview, pending, error, refreshedNotice, open, save, close }
 }
+
+export type LimitPreviewController = ReturnType<typeof useLimitPreview>

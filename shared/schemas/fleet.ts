@@ -53,17 +53,22 @@ const CharacteristicsSchema = z
   .max(40)
   .refine((list) => new Set(list.map((c) => c.key)).size === list.length, 'each key only once')
 
+/** The figures a part type's life is computed from (a limit preview changes only these). */
+export const componentTypeLifeFields = {
+  limitHours: nullablePositive,
+  limitKm: nullablePositive,
+  limitEqHours: nullablePositive,
+  limitOverRev: z.record(line().min(1).max(20), z.number().int().min(0).max(10000)),
+  immediateInspectionBand: line().min(1).max(20).nullable(),
+  warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
+  dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
+  damageExponent: z.number().min(0).max(40),
+}
+
 export const ComponentTypeUpdateSchema = z
   .object({
     name: line().trim().min(2).max(120),
-    limitHours: nullablePositive,
-    limitKm: nullablePositive,
-    limitEqHours: nullablePositive,
-    limitOverRev: z.record(line().min(1).max(20), z.number().int().min(0).max(10000)),
-    immediateInspectionBand: line().min(1).max(20).nullable(),
-    warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
-    dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
-    damageExponent: z.number().min(0).max(40),
+    ...componentTypeLifeFields,
     characteristics: CharacteristicsSchema,
   })
   .partial()

@@ -1,21 +1,10 @@
 // A limit change as it is previewed and then saved: only the figures life is computed from.
 import { z } from 'zod'
 import { line } from '../text'
-import { OverRevBandSchema } from './fleet'
-
-const nullablePositive = z.number().positive('must be above zero').nullable()
+import { componentTypeLifeFields, OverRevBandSchema } from './fleet'
 
 export const ComponentTypeLimitChangeSchema = z
-  .object({
-    limitHours: nullablePositive,
-    limitKm: nullablePositive,
-    limitEqHours: nullablePositive,
-    limitOverRev: z.record(line().min(1).max(20), z.number().int().min(0).max(10000)),
-    immediateInspectionBand: line().min(1).max(20).nullable(),
-    warningLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
-    dueLevel: z.number().gt(0, 'must be above 0').lt(1, 'must be below 1'),
-    damageExponent: z.number().min(0).max(40),
-  })
+  .object(componentTypeLifeFields)
   .partial()
   .strict()
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')

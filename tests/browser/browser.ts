@@ -13,11 +13,23 @@ export async function launch(): Promise<Browser> {
 export const LAPTOP = { width: 1366, height: 900 }
 export const TABLET = { width: 820, height: 1180 }
 
+/** Waits until Nuxt has hydrated the page: before that a click on a server-rendered button does nothing. */
+export async function hydrated(page: Page) {
+  await page.waitForFunction(() => (document.querySelector('#__nuxt') as any)?.__vue_app__?.$nuxt?.isHydrating === false)
+}
+
+/** A page signed in as `email`; its goto and reload return once the page is hydrated. */
 export async function signedInPage(browser: Browser, email: string, viewport = LAPTOP): Promise<Page> {
   const page = await browser.newPage({ viewport, baseURL: BASE })
+  for (const method of ['goto', 'reload'] as const) {
+    const original = (page[method] as (...args: unknown[]) => Promise<unknown>).bind(page)
+    ;(page as any)[method] = async (...args: unknown[]) => {
+      const response = await original(...args)
+      await hydrated(page)
+      return response
+    }
+  }
   await page.goto('/login')
-  // the button is enabled once the page is hydrated: values typed before that would be reset
-  await page.locator('button[type=submit]:enabled').waitFor()
   await page.fill('#email', email)
   await page.fill('#password', DEMO_PASSWORD)
   await page.click('button[type=submit]')
