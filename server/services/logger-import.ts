@@ -7,6 +7,7 @@ import type { Knex } from 'knex'
 import type { LoggerMapping } from '#shared/domain/logger-mapping'
 import type { TraceConfig } from '#shared/domain/trace'
 import { storedOverview } from '#shared/domain/trace/chart'
+import { OVER_REV_JSON_BUDGET } from '#shared/domain/trace/events'
 import type { OverRevEvent } from '#shared/domain/over-rev'
 import type { EngineTypeDto } from '#shared/types/fleet'
 import { scopeQuery, type Actor } from '../utils/guard'
@@ -111,20 +112,13 @@ function importErrorToHttp(error: unknown): never {
   throw error
 }
 
-/** Over-rev events of one session as stored: well under the database's 16 MiB packet. */
-const MAX_OVER_REV_BYTES = 4 << 20
-
 /**
- * A trace that sits above the over-rev thresholds for hours (a file read against the wrong engine
- * type, an engine on its limiter) can hold thousands of long excursions. Their time-at-rpm profiles
- * only serve re-classification after a band edit, so beyond the budget they are left out (those
- * events keep their verdict and their time above each band); past the budget even without them,
- * the file is refused rather than stored in part.
+ * The analysis already left the profiles out when the events with them passed the budget (see
+ * OVER_REV_JSON_BUDGET); past the budget even without them, the file is refused rather than stored
+ * in part.
  */
 function boundedOverRevs(events: OverRevEvent[]): OverRevEvent[] {
-  if (JSON.stringify(events).length <= MAX_OVER_REV_BYTES) return events
-  const withoutProfiles = events.map(({ profile: _profile, ...ev }) => ev)
-  if (JSON.stringify(withoutProfiles).length <= MAX_OVER_REV_BYTES) return withoutProfiles
+  if (JSON.stringify(events).length <= OVER_REV_JSON_BUDGET) return events
   badRequest(`Invalid input: file: ${events.length} over-rev events in one session; check that the file belongs to this engine type and that the rpm column is mapped right`)
 }
 

@@ -7,15 +7,29 @@ import type { LowOilPressureEvent } from './types'
 /** Distinct 0.1 rpm levels kept per over-rev profile; a longer excursion is merged to whole rpm. */
 const MAX_PROFILE_LEVELS = 4000
 
+/**
+ * The events of one session as JSON stay within this many bytes (well under the database's 16 MiB
+ * packet). Profiles only serve deciding the events again after a band edit: when the events with
+ * their profiles would pass the budget, every event keeps its verdict and its time above each band
+ * but no profile; past the budget even without them, the file is refused (the import's call).
+ */
+export const OVER_REV_JSON_BUDGET = 4 << 20
+
 /** The open excursion's time per 0.1 rpm level, and the events of the closed ones. */
 export class OverRevExcursions {
   readonly events: OverRevEvent[] = []
+  /** true once the events with their profiles passed the budget: no event keeps its profile */
+  profilesDropped = false
   private readonly bands: OverRevBandRule[]
+  private readonly budgetBytes: number
+  /** length of JSON.stringify(events) with profiles, while they are kept */
+  private jsonBytes = 2
   private profile = new Map<number, number>()
 
   /** `bands` sorted by minRpm */
-  constructor(bands: OverRevBandRule[]) {
+  constructor(bands: OverRevBandRule[], budgetBytes = OVER_REV_JSON_BUDGET) {
     this.bands = bands
+    this.budgetBytes = budgetBytes
   }
 
   /** A step of `dt` at `rpm` inside the open excursion. */
@@ -37,7 +51,19 @@ export class OverRevExcursions {
     this.profile = new Map()
     const verdict = classifyExcursion(profile, peakRpm, this.bands)
     if (!verdict) return
-    this.events.push({ bandId: verdict.bandId, startS: startT - firstT, durationS: endT - startT, peakRpm, secondsAbove: verdict.secondsAbove, profile })
+    const event: OverRevEvent = { bandId: verdict.bandId, startS: startT - firstT, durationS: endT - startT, peakRpm, secondsAbove: verdict.secondsAbove }
+    if (!this.profilesDropped) {
+      event.profile = profile
+      // Dropped as soon as the budget is passed, so that a trace above the thresholds for hours
+      // does not hold thousands of profiles in memory until its end.
+      this.jsonBytes += JSON.stringify(event).length + (this.events.length ? 1 : 0)
+      if (this.jsonBytes > this.budgetBytes) {
+        this.profilesDropped = true
+        delete event.profile
+        for (const e of this.events) delete e.profile
+      }
+    }
+    this.events.push(event)
   }
 }
 
