@@ -4,20 +4,14 @@
 // from one import to the next) or only taken while the collector lets the heap grow (it stays
 // level). BENCH_NODE_ARGS passes flags to the server, e.g. --max-old-space-size=128; BENCH_HOURS
 // changes the file length. Uses the test instance, reset to the demo: never beside `npm test`.
-import { createReadStream, mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs'
+import { createReadStream, mkdtempSync, rmSync, statSync } from 'node:fs'
 import { request as httpRequest } from 'node:http'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { traceCsvMapping, writeTraceFile } from './make-trace'
-import { sh, signIn, startServer, startTestDb } from './server'
+import { memoryText, sh, signIn, startServer, startTestDb } from './server'
 
 const HOURS = Number(process.env.BENCH_HOURS ?? 6)
-
-function memory(pid: number): string {
-  const status = readFileSync(`/proc/${pid}/status`, 'utf8')
-  const mb = (field: string) => (Number(new RegExp(`${field}:\\s+(\\d+) kB`).exec(status)![1]) / 1024).toFixed(0)
-  return `resident ${mb('VmRSS')} MB, peak ${mb('VmHWM')} MB`
-}
 
 function postFile(url: string, headers: Record<string, string>, file: string): Promise<number> {
   return new Promise((answer, fail) => {
@@ -47,13 +41,13 @@ try {
     const cookie = await signIn(server.base, 'race@redfern.test')
     const engines = (await (await fetch(`${server.base}/api/engines`, { headers: { cookie } })).json()) as { id: number; serial: string }[]
     const engine = engines.find((e) => e.serial === 'KT4-2102')!
-    console.log(`before the first import: ${memory(pid)}`)
+    console.log(`before the first import: ${memoryText(pid)}`)
     for (const [i, file] of files.entries()) {
       // test sessions on days that are not yet logged, so that no date check or duplicate refuses them
       const query = new URLSearchParams({ engineId: String(engine.id), kind: 'test', startedAt: new Date(Date.now() - 86_400_000 * (i + 1)).toISOString(), fileName: `trace-${i + 1}.csv`, mapping: JSON.stringify(traceCsvMapping()) })
       const status = await postFile(`${server.base}/api/imports?${query}`, { cookie, origin: server.base }, file)
       if (status !== 201) throw new Error(`import ${i + 1} answered ${status}`)
-      console.log(`after import ${i + 1}: ${memory(pid)}`)
+      console.log(`after import ${i + 1}: ${memoryText(pid)}`)
     }
   } finally {
     await server.stop()

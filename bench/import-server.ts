@@ -4,21 +4,15 @@
 // timed from the first byte sent to the session's answer; the server's peak RSS is read from
 // /proc at the end. Uses the test MariaDB instance (reset to the demo data): never beside `npm test`.
 
-import { createReadStream, createWriteStream, openSync, readFileSync, readSync, closeSync, statSync } from 'node:fs'
+import { createReadStream, createWriteStream, openSync, readSync, closeSync, statSync } from 'node:fs'
 import { request as httpRequest } from 'node:http'
 import { join } from 'node:path'
 import { pipeline } from 'node:stream/promises'
 import { createGzip } from 'node:zlib'
 import { traceCsvMapping, writeTraceFile } from './make-trace'
-import { sh, signIn, startServer, startTestDb } from './server'
+import { processMemoryMB, sh, signIn, startServer, startTestDb } from './server'
 
 const PART_BYTES = 8 * 1024 * 1024
-
-/** The server's peak resident set so far (VmHWM), in MB. */
-function peakRssMB(pid: number): number {
-  const status = readFileSync(`/proc/${pid}/status`, 'utf8')
-  return Number(/VmHWM:\s+(\d+) kB/.exec(status)![1]) / 1024
-}
 
 function post(url: string, headers: Record<string, string>, body: Buffer | string | NodeJS.ReadableStream): Promise<{ status: number; text: string; headers: Record<string, string | string[] | undefined> }> {
   return new Promise((resolveAnswer, reject) => {
@@ -86,7 +80,7 @@ export async function serverImports(sixHourFile: string, dir: string, bigGb: num
     console.log(
       `whole import of the ${(size / 1e9).toFixed(2)} GB race file, compressed in ${Math.ceil(gzSize / PART_BYTES)} parts of 8 MiB: ` +
         `${((done - t0) / 1000).toFixed(1)} s (upload ${((uploaded - t0) / 1000).toFixed(1)} s, reading and storing ${((done - uploaded) / 1000).toFixed(1)} s; target < 30 s); ` +
-        `server peak RSS ${peakRssMB(server.process.pid!).toFixed(0)} MB (target < 300 MB); running time found ${(session.runningSeconds / 3600).toFixed(2)} h`,
+        `server peak RSS ${processMemoryMB(server.process.pid!).peak.toFixed(0)} MB (target < 300 MB); running time found ${(session.runningSeconds / 3600).toFixed(2)} h`,
     )
   } finally {
     await server.stop()

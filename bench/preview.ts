@@ -3,22 +3,14 @@
 // supplier engineer, from request to answer: each one alone right after a write (it reads the fleet
 // itself), then after the board was opened once, several runs each. Nothing is saved. Uses the test
 // instance: do not run it beside `npm test`.
-import { readFileSync } from 'node:fs'
 import knexFactory from 'knex'
 import { knexConfig } from '../db/knexfile'
 import { prepareFleet } from './fleet'
-import { signIn, startServer, startTestDb } from './server'
+import { memoryText, signIn, startServer, startTestDb } from './server'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3396)
 const RUNS = Number(process.env.BENCH_RUNS ?? 5)
 const TARGET_MS = 2000
-
-/** The server's resident memory now and at its peak, MB (Linux). */
-function memory(pid: number | undefined): string {
-  const status = readFileSync(`/proc/${pid}/status`, 'utf8')
-  const mb = (field: string) => (Number(/\d+/.exec(status.match(new RegExp(`${field}:.*`))?.[0] ?? '')?.[0] ?? 0) / 1024).toFixed(0)
-  return `server resident ${mb('VmRSS')} MB, peak ${mb('VmHWM')} MB`
-}
 
 async function main() {
   const url = startTestDb()
@@ -58,11 +50,11 @@ async function main() {
       console.log(`${name.padEnd(62)} ${ms.toFixed(0).padStart(6)}   (${timings(json.timingsMs)})`)
     }
 
-    console.log(memory(server.process.pid))
+    console.log(memoryText(server.process.pid!))
     await bumpRevision()
     const w0 = Date.now()
     await fetch(`${base}/api/board`, { headers: { cookie } })
-    console.log(`\n2. After a write, the board opened once (${Date.now() - w0} ms; the server then holds the fleet's life; ${memory(server.process.pid)}), then each preview ${RUNS} times in a row, ms (target < ${TARGET_MS} ms):`)
+    console.log(`\n2. After a write, the board opened once (${Date.now() - w0} ms; the server then holds the fleet's life; ${memoryText(server.process.pid!)}), then each preview ${RUNS} times in a row, ms (target < ${TARGET_MS} ms):`)
     let worstMedian = 0
     for (const [name, path, body] of cases) {
       const times: number[] = []
@@ -83,7 +75,7 @@ async function main() {
           `   (${last.covered.engines} engines, ${last.covered.parts} parts; ${s.statusChanges} status changes, ${s.cannotFinish} lost events, ${s.dueEarlier} due earlier; first run ${timings(first.timingsMs)}; last run ${timings(last.timingsMs)})`,
       )
     }
-    console.log(`\n${memory(server.process.pid)} (the board's rows are held for 10 idle minutes beside its life)`)
+    console.log(`\n${memoryText(server.process.pid!)} (the board's rows are held for 10 idle minutes beside its life)`)
     console.log(`\ntarget: every median < ${TARGET_MS} ms -> ${worstMedian < TARGET_MS ? 'met' : 'NOT met'} (worst median ${worstMedian.toFixed(0)} ms)`)
   } finally {
     await server.stop()

@@ -1,6 +1,6 @@
 // What the benchmarks share: the test MariaDB instance and the built server started against it.
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process'
-import { existsSync, mkdtempSync, rmSync } from 'node:fs'
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { DEMO_PASSWORD } from '../db/seeds/demo'
@@ -55,4 +55,17 @@ export async function signIn(base: string, email: string): Promise<string> {
   const res = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
   if (!res.ok) throw new Error(`sign-in of ${email} failed: ${res.status}`)
   return res.headers.getSetCookie().find((c) => c.startsWith('nuxt-session='))!.split(';')[0]!
+}
+
+/** A process's resident memory now and at its peak so far (VmRSS, VmHWM), MB; Linux. */
+export function processMemoryMB(pid: number): { resident: number; peak: number } {
+  const status = readFileSync(`/proc/${pid}/status`, 'utf8')
+  const mb = (field: string) => Number(new RegExp(`${field}:\\s+(\\d+) kB`).exec(status)![1]) / 1024
+  return { resident: mb('VmRSS'), peak: mb('VmHWM') }
+}
+
+/** The same as text: "resident N MB, peak M MB". */
+export function memoryText(pid: number): string {
+  const m = processMemoryMB(pid)
+  return `resident ${m.resident.toFixed(0)} MB, peak ${m.peak.toFixed(0)} MB`
 }

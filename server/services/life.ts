@@ -15,6 +15,7 @@ import { forecastEngine, forecastPart, recentDuty, type PlannedEvent } from '#sh
 import { createUsageIndex, type UsageIndex } from '#shared/domain/life-index'
 import type { CanFinishDto, ComponentTypeDto, EngineDetailDto, EngineTypeDto, PartLifeDto } from '#shared/types/fleet'
 import { iso } from '../utils/db'
+import { idleHeld } from '../utils/idle-held'
 import { oilStatusByEngine } from './oil'
 import { loadSessionUsage } from './session-usage'
 import {
@@ -45,8 +46,12 @@ type SessionRow = EngineSession & { bandWidthRpm: number; eventId: number | null
  */
 export async function computeFleetLife(db: Knex, now: Date, revision?: number): Promise<FleetLife> {
   const rev = revision ?? (await lifeRevision(db))
-  return fleetLifeFromRows(await loadFleetRows(db, now), now, rev)
+  return fleetLifeFromRows(await loadFleetRows(db, now, LIFE_ONLY), now, rev)
 }
+
+// Life reads an exact session's cached equivalent hours, never its histogram: the board's read and
+// every other whole-fleet computation leave those histograms out.
+const LIFE_ONLY = { lifeOnly: true } as const
 
 /** Steps 2 to 4 on rows already read: the limit preview runs them twice on one read, with and without the change. */
 export function fleetLifeFromRows(rows: FleetRows, now: Date, rev: number): FleetLife {
@@ -331,8 +336,7 @@ function groupLife(parts: PartLifeDto[]) {
 interface CachedFleet {
   key: string
   value: Promise<FleetLife>
-  rows: Promise<FleetRows> | null
-  dropRows?: ReturnType<typeof setTimeout>
+  rows: ReturnType<typeof idleHeld<Promise<FleetRows>>>
 }
 const KEEP_ROWS_MS = 10 * 60_000
 let cached: CachedFleet | null = null
@@ -343,24 +347,18 @@ export async function fleetLife(db: Knex, now = new Date()): Promise<FleetLife> 
   const revision = await lifeRevision(db)
   const key = cacheKey(revision, now)
   if (!cached || cached.key !== key) {
-    if (cached?.dropRows) clearTimeout(cached.dropRows)
-    const rows = loadFleetRows(db, now, { lifeOnly: true })
-    const value = rows.then((r) => fleetLifeFromRows(r, now, revision))
-    const entry: CachedFleet = { key, value, rows }
+    const read = loadFleetRows(db, now, LIFE_ONLY)
+    const value = read.then((r) => fleetLifeFromRows(r, now, revision))
+    const entry: CachedFleet = { key, value, rows: idleHeld(KEEP_ROWS_MS) }
+    entry.rows.set(read)
     cached = entry
     value.catch(() => {
       if (cached === entry) cached = null
     })
+  } else {
+    cached.rows.get() // used again: its rows stay a while longer
   }
-  keepRowsAwhile(cached)
   return cached.value
-}
-
-function keepRowsAwhile(entry: CachedFleet) {
-  if (!entry.rows) return
-  if (entry.dropRows) clearTimeout(entry.dropRows)
-  entry.dropRows = setTimeout(() => (entry.rows = null), KEEP_ROWS_MS)
-  entry.dropRows.unref?.()
 }
 
 /**
@@ -368,7 +366,6 @@ function keepRowsAwhile(entry: CachedFleet) {
  * otherwise). The rows were read without one snapshot: the caller checks that they match its own.
  */
 export function cachedFleet(revision: number, now: Date): { rows: Promise<FleetRows>; life: Promise<FleetLife> } | null {
-  if (!cached || cached.key !== cacheKey(revision, now) || !cached.rows) return null
-  keepRowsAwhile(cached)
-  return { rows: cached.rows, life: cached.value }
+  const rows = cached?.key === cacheKey(revision, now) ? cached.rows.get() : null
+  return rows ? { rows, life: cached!.value } : null
 }

@@ -14,6 +14,7 @@ import type { ComponentTypeLimitChange, EngineTypeLimitChange } from '#shared/sc
 import type { LimitPreviewDto, LimitSaveDto, LimitTargetKind } from '#shared/types/limit-preview'
 import { canWriteCatalogue, type Actor } from '../utils/guard'
 import { badRequest, conflict, notFound } from '../utils/errors'
+import { idleHeld } from '../utils/idle-held'
 import { readPreviewToken, signPreviewToken } from '../utils/preview-token'
 import { updateComponentType } from './component-types'
 import { updateEngineType } from './engine-types'
@@ -106,25 +107,20 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
 // read; dropped after a few idle minutes. Rows filled with a proposed exponent or reference speed are
 // kept with those pairs: a preview needing others reads afresh.
 interface Kept { key: string; pairs: string[]; rows: FleetRows; engineIds: Set<number>; typeIds: Set<number>; before: PreviewFleet; reused?: boolean; source: 'board' | 'read' }
-const KEEP_MS = 10 * 60_000
-let kept: Kept | null = null
-let dropTimer: ReturnType<typeof setTimeout> | null = null
+const kept = idleHeld<Kept>(10 * 60_000)
 
 function keyOf(fingerprint: string, supplierId: number, now: Date) {
   return `${fingerprint}|${supplierId}|${Math.floor(now.getTime() / 3_600_000)}`
 }
 
 function keptRows(fingerprint: string, supplierId: number, now: Date, pairs: string[]): (Kept & { reused: boolean }) | null {
-  if (!kept || kept.key !== keyOf(fingerprint, supplierId, now) || !pairs.every((p) => kept!.pairs.includes(p))) return null
-  keepRows(kept)
-  return { ...kept, reused: true }
+  const k = kept.get()
+  if (!k || k.key !== keyOf(fingerprint, supplierId, now) || !pairs.every((p) => k.pairs.includes(p))) return null
+  return { ...k, reused: true }
 }
 
 function keepRows(entry: Kept): Kept & { reused: boolean } {
-  kept = entry
-  if (dropTimer) clearTimeout(dropTimer)
-  dropTimer = setTimeout(() => (kept = null), KEEP_MS)
-  dropTimer.unref?.()
+  kept.set(entry)
   return { ...entry, reused: false }
 }
 
@@ -177,7 +173,7 @@ async function supplierExponents(db: Db, supplierId: number): Promise<number[]> 
 /** The equivalent-hour pairs the proposed values need beyond those in use (evaluated from rpm moments, kept in memory only). */
 function extraPairsFor(target: Target, exponents: number[]) {
   // the sessions read are the supplier's own (the read is narrowed to its engines)
-  return (engineTypeId: number, _supplierId: number, referenceRpm: number) => {
+  return (engineTypeId: number, referenceRpm: number) => {
     if (target.kind === 'component-type') {
       const p = target.change.damageExponent
       return p === undefined ? [] : [{ exponent: p, referenceRpm }]

@@ -16,7 +16,7 @@ const FILL_CHUNK = 500
 
 export interface SessionUsageOptions {
   /** more (exponent, reference rpm) pairs a session of this engine must carry: a limit preview's proposed values */
-  extraPairs?: (engineTypeId: number, supplierId: number, referenceRpm: number) => { exponent: number; referenceRpm: number }[]
+  extraPairs?: (engineTypeId: number, referenceRpm: number) => { exponent: number; referenceRpm: number }[]
   /** false: fill what is missing in memory only (a preview writes nothing) */
   writeCache?: boolean
   /** leave out the histograms of exact sessions (life reads their cached equivalent hours; charts need them) */
@@ -57,7 +57,7 @@ export async function loadSessionUsage(db: Db, where: (qb: Knex.QueryBuilder) =>
     const pairs: Pair[] = (exponentsBySupplier.get(r.supplier_id) ?? []).map((p) => ({ exponent: p, referenceRpm: r.reference_rpm }))
     if (opts.extraPairs) {
       let extra = extraByEngineType.get(r.engine_type_id)
-      if (!extra) extraByEngineType.set(r.engine_type_id, (extra = opts.extraPairs(r.engine_type_id, r.supplier_id, r.reference_rpm).filter((x) => x.exponent !== 0)))
+      if (!extra) extraByEngineType.set(r.engine_type_id, (extra = opts.extraPairs(r.engine_type_id, r.reference_rpm).filter((x) => x.exponent !== 0)))
       pairs.push(...extra)
     }
     if (pairs.some((x) => s.eqHoursCache?.[eqCacheKey(x.exponent, x.referenceRpm)] === undefined)) missing.push({ session: s, pairs })
