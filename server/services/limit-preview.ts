@@ -8,6 +8,7 @@
 // was previewed, and the audit row keeps the preview's summary.
 import { createHash } from 'node:crypto'
 import type { Knex } from 'knex'
+import { canonicalJson } from '#shared/canonical-json'
 import { compareFleets, summarisePreview, type LimitPreviewSummary, type PreviewFleet } from '#shared/domain/limit-preview'
 import { reclassifyEvents } from '#shared/domain/over-rev'
 import type { ComponentTypeLimitChange, EngineTypeLimitChange } from '#shared/schemas/limit-preview'
@@ -82,7 +83,7 @@ async function preview(db: Knex, actor: Actor, target: Target, now = new Date())
       const t3 = performance.now()
       const result = compareFleets(before, after)
       const summary = summarisePreview(result)
-      const payload: TokenPayload = { kind: target.kind, id: target.id, change: canonical(target.change), fingerprint, summary }
+      const payload: TokenPayload = { kind: target.kind, id: target.id, change: canonicalJson(target.change), fingerprint, summary }
       return {
         ...result,
         target: { kind: target.kind, id: target.id, code: current.dto.code, name: current.dto.name },
@@ -135,7 +136,7 @@ async function save(db: Knex, actor: Actor, target: Target, token: string, now =
   if (!payload) badRequest('Invalid input: previewToken: not a preview made by this server; preview the change again')
   return db.transaction(async (trx) => {
     const current = await targetRow(trx, actor, target, true)
-    if (payload.kind !== target.kind || payload.id !== target.id || payload.change !== canonical(target.change)) {
+    if (payload.kind !== target.kind || payload.id !== target.id || payload.change !== canonicalJson(target.change)) {
       conflict('This change is not the one previewed: preview it again before saving', { reason: 'change' })
     }
     // Every write that moves life bumps this row: holding it keeps them out until the change is in.
@@ -254,15 +255,9 @@ async function sharedRows(revision: number, fingerprint: string, now: Date): Pro
   }
 }
 
-/** JSON with object keys sorted, so that the same change always reads the same. */
-function canonical(v: unknown): string {
-  const sort = (x: unknown): unknown =>
-    Array.isArray(x) ? x.map(sort) : x && typeof x === 'object' ? Object.fromEntries(Object.keys(x).sort().map((k) => [k, sort((x as Record<string, unknown>)[k])])) : x
-  return JSON.stringify(sort(v))
-}
 
 function changedFields(current: Record<string, unknown>, change: Record<string, unknown>) {
   return Object.entries(change)
-    .filter(([k, v]) => canonical(current[k] ?? null) !== canonical(v ?? null))
+    .filter(([k, v]) => canonicalJson(current[k] ?? null) !== canonicalJson(v ?? null))
     .map(([field, after]) => ({ field, before: current[field] ?? null, after: after ?? null }))
 }
